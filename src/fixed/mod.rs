@@ -1,0 +1,1 @@
+//! Integer-only tier (in progress).
