@@ -9,7 +9,7 @@ use crate::Real;
 
 /// stirlerr(a) at a = i/2 for i = 1..=30, from `tests/reference/gen_stirling.py` (mpmath, 40 digits).
 #[allow(clippy::excessive_precision)]
-const STIRLERR_HALVES: [f64; 30] = [
+pub(crate) const STIRLERR_HALVES: [f64; 30] = [
     1.53426409720027357e-01,
     8.10614667953272611e-02,
     5.48141210519176511e-02,

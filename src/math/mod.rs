@@ -10,7 +10,7 @@ mod igamma_inv;
 mod lambert_w;
 pub(crate) mod loader;
 mod real;
-mod temme_table;
+pub(crate) mod temme_table;
 
 pub(crate) use igamma::tails;
 pub use igamma::{gamma_p, gamma_q, ln_gamma_p, ln_gamma_q};
