@@ -14,21 +14,48 @@ pub(crate) fn first_accepted<E>(
     step: u32,
     mut accept: impl FnMut(u32) -> Result<bool, E>,
 ) -> Result<Option<u32>, E> {
-    // lo: largest n known to be rejected (min-1 is rejected by convention);
-    // hi: smallest n known to be accepted (max+1 stands for "none").
+    let b = bracket(min, max, guess, step, &mut accept)?;
+    let b = bisect(b, 1, &mut accept)?;
+    Ok(b.answer(max))
+}
+
+/// A bracket of the switch point: `lo` is rejected (or `min - 1`), `hi` is
+/// accepted (or `max + 1`, standing for "none in range").
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) struct Bracket {
+    /// Largest n known to be rejected.
+    pub lo: i64,
+    /// Smallest n known to be accepted.
+    pub hi: i64,
+}
+
+impl Bracket {
+    /// The switch point once the bracket is closed (`hi - lo == 1`).
+    pub(crate) fn answer(self, max: u32) -> Option<u32> {
+        if self.hi > i64::from(max) { None } else { Some(self.hi as u32) }
+    }
+}
+
+/// Gallops from `guess` with strides `step`, `2 step`, … to a bracket.
+pub(crate) fn bracket<E>(
+    min: u32,
+    max: u32,
+    guess: u32,
+    step: u32,
+    accept: &mut impl FnMut(u32) -> Result<bool, E>,
+) -> Result<Bracket, E> {
     let mut lo = i64::from(min) - 1;
     let mut hi = i64::from(max) + 1;
     let g = i64::from(guess.clamp(min, max));
     let mut stride = i64::from(step.max(1));
-    let mut test = |n: i64| accept(n as u32);
-    if test(g)? {
+    if accept(g as u32)? {
         hi = g;
         loop {
             let t = hi - stride;
             if t <= lo {
                 break;
             }
-            if test(t)? {
+            if accept(t as u32)? {
                 hi = t;
                 stride = stride.saturating_mul(2);
             } else {
@@ -43,7 +70,7 @@ pub(crate) fn first_accepted<E>(
             if t >= hi {
                 break;
             }
-            if test(t)? {
+            if accept(t as u32)? {
                 hi = t;
                 break;
             }
@@ -51,15 +78,24 @@ pub(crate) fn first_accepted<E>(
             stride = stride.saturating_mul(2);
         }
     }
-    while hi - lo > 1 {
-        let m = lo + (hi - lo) / 2;
-        if test(m)? {
-            hi = m;
+    Ok(Bracket { lo, hi })
+}
+
+/// Bisects until `hi - lo <= width` (width ≥ 1).
+pub(crate) fn bisect<E>(
+    mut b: Bracket,
+    width: i64,
+    accept: &mut impl FnMut(u32) -> Result<bool, E>,
+) -> Result<Bracket, E> {
+    while b.hi - b.lo > width.max(1) {
+        let m = b.lo + (b.hi - b.lo) / 2;
+        if accept(m as u32)? {
+            b.hi = m;
         } else {
-            lo = m;
+            b.lo = m;
         }
     }
-    Ok(if hi > i64::from(max) { None } else { Some(hi as u32) })
+    Ok(b)
 }
 
 #[cfg(test)]

@@ -54,27 +54,33 @@ fn gamma_q_large_shape() {
     assert!(rel(gamma_q(1e6 + 1.0, 1e6).unwrap(), 0.500265961486284) < 1e-12);
 }
 
-/// Alarm thresholds n*: methods §1.4 table (40-digit series, quadrature check at 1e7).
+/// Alarm thresholds n*: methods §1.4 table (40-digit series, quadrature check
+/// at 1e7), with the table's smaller margin (relative distance of α from the
+/// tail at n* or n* - 1): f32 may be off by one where it is below 1e-3.
 #[test]
 fn alarm_thresholds_f64() {
-    let cases: &[(f64, f64, u32)] = &[
-        (1e-6, 1e-3, 1), (1e-6, 1e-6, 1), (1e-6, 1e-9, 2),
-        (1e-3, 1e-3, 1), (1e-3, 1e-6, 2), (1e-3, 1e-9, 3),
-        (0.1, 1e-3, 3), (0.1, 1e-6, 5), (0.1, 1e-9, 7),
-        (1.0, 1e-3, 6), (1.0, 1e-6, 10), (1.0, 1e-9, 12),
-        (10.0, 1e-3, 22), (10.0, 1e-6, 29), (10.0, 1e-9, 35),
-        (100.0, 1e-3, 133), (100.0, 1e-6, 152), (100.0, 1e-9, 167),
-        (1e3, 1e-3, 1100), (1e3, 1e-6, 1155), (1e3, 1e-9, 1196),
-        (1e4, 1e-3, 10311), (1e4, 1e-6, 10480), (1e4, 1e-9, 10607),
-        (1e5, 1e-3, 100980), (1e5, 1e-6, 101508), (1e5, 1e-9, 101903),
-        (1e6, 1e-3, 1003093), (1e6, 1e-6, 1004758), (1e6, 1e-9, 1006005),
-        (1e7, 1e-3, 10009775), (1e7, 1e-6, 10015036), (1e7, 1e-9, 10018974),
+    let cases: &[(f64, f64, u32, f64)] = &[
+        (1e-6, 1e-3, 1, 0.999), (1e-6, 1e-6, 1, 5.0e-7), (1e-6, 1e-9, 2, 0.9995),
+        (1e-3, 1e-3, 1, 5.0e-4), (1e-3, 1e-6, 2, 0.50), (1e-3, 1e-9, 3, 0.83),
+        (0.1, 1e-3, 3, 0.85), (0.1, 1e-6, 5, 0.92), (0.1, 1e-9, 7, 0.275),
+        (1.0, 1e-3, 6, 0.41), (1.0, 1e-6, 10, 0.125), (1.0, 1e-9, 12, 0.17),
+        (10.0, 1e-3, 22, 0.30), (10.0, 1e-6, 29, 0.24), (10.0, 1e-9, 35, 0.39),
+        (100.0, 1e-3, 133, 0.065), (100.0, 1e-6, 152, 0.20), (100.0, 1e-9, 167, 0.0171),
+        (1e3, 1e-3, 1100, 0.037), (1e3, 1e-6, 1155, 0.0561), (1e3, 1e-9, 1196, 0.018),
+        (1e4, 1e-3, 10311, 1.9e-3), (1e4, 1e-6, 10480, 0.0209), (1e4, 1e-9, 10607, 4.75e-3),
+        (1e5, 1e-3, 100980, 1.49e-3), (1e5, 1e-6, 101508, 4.04e-3), (1e5, 1e-9, 101903, 1.5e-4),
+        (1e6, 1e-3, 1003093, 5.3e-4), (1e6, 1e-6, 1004758, 2.4e-3), (1e6, 1e-9, 1006005, 8.2e-4),
+        (1e7, 1e-3, 10009775, 1.0e-4), (1e7, 1e-6, 10015036, 4.0e-4), (1e7, 1e-9, 10018974, 1.2e-4),
     ];
-    for &(mu, alpha, want) in cases {
+    for &(mu, alpha, want, margin) in cases {
         let t = alarm_threshold(mu, alpha).unwrap();
         assert_eq!(t.counts, want, "mu = {mu}, alpha = {alpha}");
         let f = alarm_threshold(mu as f32, alpha as f32).unwrap();
-        assert_eq!(f.counts, want, "f32: mu = {mu}, alpha = {alpha}");
+        if margin >= 1e-3 {
+            assert_eq!(f.counts, want, "f32: mu = {mu}, alpha = {alpha}");
+        } else {
+            assert!(f.counts.abs_diff(want) <= 1, "f32 near tie: mu = {mu}, alpha = {alpha}: {}", f.counts);
+        }
     }
 }
 

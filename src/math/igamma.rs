@@ -35,33 +35,36 @@ const MAX_ITER: u32 = 2_000;
 const _: () = assert!(<f64 as Real>::TEMME_TERMS <= TERMS && <f64 as Real>::TEMME_DEGREE <= DEGREE);
 const _: () = assert!(<f32 as Real>::TEMME_TERMS <= TERMS && <f32 as Real>::TEMME_DEGREE <= DEGREE);
 
-/// Both regularized tails at one point, with the smaller one held directly.
+/// Both regularized tails at one point, held as the logarithm of the smaller
+/// one (the other is formed on demand, so a caller that needs one side in log
+/// form pays for no exponential).
 #[derive(Debug, Clone, Copy)]
 pub(crate) struct GammaTails<F> {
-    /// The smaller of P and Q (either one near 1/2).
-    small: F,
-    /// ln of `small`.
+    /// ln of the smaller of P and Q (either one near 1/2).
     ln_small: F,
-    /// Whether `small` is Q (upper) rather than P (lower).
+    /// Whether the smaller one is Q (upper) rather than P (lower).
     small_is_upper: bool,
 }
 
 impl<F: Real> GammaTails<F> {
+    fn small(&self) -> F {
+        self.ln_small.exp()
+    }
     /// P(a, x).
     pub(crate) fn lower(&self) -> F {
-        if self.small_is_upper { F::ONE - self.small } else { self.small }
+        if self.small_is_upper { F::ONE - self.small() } else { self.small() }
     }
     /// Q(a, x).
     pub(crate) fn upper(&self) -> F {
-        if self.small_is_upper { self.small } else { F::ONE - self.small }
+        if self.small_is_upper { self.small() } else { F::ONE - self.small() }
     }
     /// ln P(a, x).
     pub(crate) fn ln_lower(&self) -> F {
-        if self.small_is_upper { (-self.small).ln_1p() } else { self.ln_small }
+        if self.small_is_upper { (-self.small()).ln_1p() } else { self.ln_small }
     }
     /// ln Q(a, x).
     pub(crate) fn ln_upper(&self) -> F {
-        if self.small_is_upper { self.ln_small } else { (-self.small).ln_1p() }
+        if self.small_is_upper { self.ln_small } else { (-self.small()).ln_1p() }
     }
 }
 
@@ -85,10 +88,10 @@ pub(crate) fn check_shape_arg<F: Real>(a: F, x: F) -> Result<(), Error> {
 /// P and Q at (a, x); the caller has validated a > 0 and x ≥ 0.
 pub(crate) fn tails<F: Real>(a: F, x: F) -> Result<GammaTails<F>, Error> {
     if x == F::ZERO {
-        return Ok(GammaTails { small: F::ZERO, ln_small: -F::INFINITY, small_is_upper: false });
+        return Ok(GammaTails { ln_small: -F::INFINITY, small_is_upper: false });
     }
     if !x.is_finite() {
-        return Ok(GammaTails { small: F::ZERO, ln_small: -F::INFINITY, small_is_upper: true });
+        return Ok(GammaTails { ln_small: -F::INFINITY, small_is_upper: true });
     }
     if a >= F::of(TEMME_MIN_SHAPE) {
         let dev = bd0(a, x);
@@ -103,7 +106,7 @@ pub(crate) fn tails<F: Real>(a: F, x: F) -> Result<GammaTails<F>, Error> {
 
 /// Builds the result from ln(small).
 fn from_ln<F: Real>(ln_small: F, small_is_upper: bool) -> GammaTails<F> {
-    GammaTails { small: ln_small.exp(), ln_small, small_is_upper }
+    GammaTails { ln_small, small_is_upper }
 }
 
 /// P(a, x) = D · Σ_j x^j / ((a+1)…(a+j)), D = x^a e^{-x} / Γ(a+1).

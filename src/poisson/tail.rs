@@ -104,3 +104,22 @@ pub fn pmf<F: Real>(mean: F, k: u32) -> Result<Prob<F>, Error> {
     };
     Ok(Prob { p: ln_p.exp(), ln_p })
 }
+
+/// ln P(N ≥ k) alone (no exponential taken), for searches; mean validated by the caller.
+pub(crate) fn ln_at_least_unchecked<F: Real>(mean: F, k: u32) -> Result<F, Error> {
+    if k == 0 {
+        return Ok(F::ZERO);
+    }
+    if mean == F::ZERO {
+        return Ok(-F::INFINITY);
+    }
+    Ok(tails(F::of_u32(k), mean)?.ln_lower())
+}
+
+/// ln P(N ≤ k) alone, for searches; mean validated by the caller.
+pub(crate) fn ln_at_most_unchecked<F: Real>(mean: F, k: u32) -> Result<F, Error> {
+    if mean == F::ZERO {
+        return Ok(F::ZERO);
+    }
+    Ok(tails(F::of_u32(k) + F::ONE, mean)?.ln_upper())
+}

@@ -2,17 +2,30 @@
 //! the fault threshold (largest n with P(N ≤ n) ≤ α).
 //!
 //! Method: a start from the two-term Cornish–Fisher expansion of the Poisson
-//! quantile (Abramowitz & Stegun 26.2.49-style; the rule used for R's
-//! `qpois` start), galloping from it to a bracket, then integer bisection on
-//! the log tail. The number of tail evaluations grows like log μ (about 6–20
-//! for μ from 1e-9 to 1e8), each of O(1) cost.
+//! quantile (the start used by R's `qpois`), galloping from it to a bracket,
+//! integer bisection on the log tail down to a bracket of at most 64 counts,
+//! then a walk across the bracket by the stable recurrences
+//! P(N ≥ n-1) = P(N ≥ n) + p(n-1), p(n-1) = p(n)·n/μ (and the mirror image for
+//! the lower tail), which needs no further tail evaluation. The number of tail
+//! evaluations is O(log μ) and in practice 2–4 (the start is within a few
+//! counts for large μ); each is O(1). Where α is so small that linear
+//! probabilities would leave the normal float range, the search bisects to
+//! the end in log space instead.
 
 use super::check_mean;
-use super::tail::{Prob, at_least, at_most};
+use super::tail::{Prob, at_least, at_most, ln_at_least_unchecked, ln_at_most_unchecked, pmf};
 use crate::error::{Error, Param, check_open_unit};
 use crate::math::normal_upper_quantile_rough;
-use crate::search::first_accepted;
+use crate::search::{Bracket, bisect, bracket};
 use crate::Real;
+
+/// Brackets narrower than this are finished by the recurrence walk.
+const WALK_WIDTH: i64 = 64;
+
+/// Whether linear probabilities near α stay well inside the normal range.
+fn walkable<F: Real>(ln_alpha: F) -> bool {
+    ln_alpha > F::MIN_POSITIVE.ln() + F::of(60.0)
+}
 
 /// A count threshold with the tail probability it achieves.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -60,12 +73,50 @@ pub fn alarm_threshold<F: Real>(mean: F, alpha: F) -> Result<CountThreshold<F>, 
     let alpha = check_open_unit(alpha, Param::Alpha)?;
     let ln_alpha = alpha.ln();
     let (g, stride) = guess(mean, alpha, true);
-    let n = first_accepted(1, u32::MAX, g.saturating_add(1), stride, |n| {
-        Ok::<bool, Error>(at_least(mean, n)?.ln_p <= ln_alpha)
-    })?
-    // P(N ≥ u32::MAX) ≤ α for every admitted mean; a None is a defect.
-    .ok_or(Error::NoConvergence)?;
+    let mut accept = |n| Ok::<bool, Error>(ln_at_least_unchecked(mean, n)? <= ln_alpha);
+    let b = bracket(1, u32::MAX, g.saturating_add(1), stride, &mut accept)?;
+    let walk = walkable(ln_alpha);
+    let b = bisect(b, if walk { WALK_WIDTH } else { 1 }, &mut accept)?;
+    // P(N ≥ u32::MAX) ≤ α for every admitted mean, so hi is in range.
+    if b.hi > i64::from(u32::MAX) {
+        return Err(Error::NoConvergence);
+    }
+    let n = if b.hi - b.lo > 1 { walk_down(mean, alpha, b)? } else { b.hi as u32 };
     Ok(CountThreshold { counts: n, tail: at_least(mean, n)? })
+}
+
+/// From an accepted `hi` (P(N ≥ hi) ≤ α), steps down while P(N ≥ n - 1) ≤ α.
+fn walk_down<F: Real>(mean: F, alpha: F, b: Bracket) -> Result<u32, Error> {
+    let mut n = b.hi as u32;
+    let mut tail = at_least(mean, n)?.p;
+    let mut p = pmf(mean, n)?.p;
+    while i64::from(n) - 1 > b.lo {
+        p = p * F::of_u32(n) / mean;
+        let wider = tail + p;
+        if wider > alpha {
+            break;
+        }
+        tail = wider;
+        n -= 1;
+    }
+    Ok(n)
+}
+
+/// From a rejected `lo` (P(N ≤ lo) ≤ α), steps up while P(N ≤ n + 1) ≤ α.
+fn walk_up<F: Real>(mean: F, alpha: F, b: Bracket) -> Result<u32, Error> {
+    let mut n = b.lo as u32;
+    let mut tail = at_most(mean, n)?.p;
+    let mut p = pmf(mean, n)?.p;
+    while i64::from(n) + 1 < b.hi {
+        p = p * mean / F::of_u32(n + 1);
+        let wider = tail + p;
+        if wider > alpha {
+            break;
+        }
+        tail = wider;
+        n += 1;
+    }
+    Ok(n)
 }
 
 /// The fault threshold: the largest n with P(N ≤ n) ≤ α (fault when the
@@ -90,12 +141,21 @@ pub fn fault_threshold<F: Real>(mean: F, alpha: F) -> Result<Option<CountThresho
     let ln_alpha = alpha.ln();
     let (g, stride) = guess(mean, alpha, false);
     // First n whose lower tail exceeds α; the threshold is the count before it.
-    let first_over = first_accepted(0, u32::MAX, g, stride, |n| {
-        Ok::<bool, Error>(at_most(mean, n)?.ln_p > ln_alpha)
-    })?
-    .ok_or(Error::NoConvergence)?;
-    match first_over.checked_sub(1) {
-        None => Ok(None),
-        Some(n) => Ok(Some(CountThreshold { counts: n, tail: at_most(mean, n)? })),
+    let mut accept = |n| Ok::<bool, Error>(ln_at_most_unchecked(mean, n)? > ln_alpha);
+    let b = bracket(0, u32::MAX, g, stride, &mut accept)?;
+    let walk = walkable(ln_alpha);
+    let b = bisect(b, if walk { WALK_WIDTH } else { 1 }, &mut accept)?;
+    if b.hi > i64::from(u32::MAX) {
+        return Err(Error::NoConvergence);
     }
+    let n = if b.hi - b.lo > 1 && b.lo >= 0 {
+        walk_up(mean, alpha, b)?
+    } else {
+        let b = bisect(b, 1, &mut accept)?;
+        match (b.hi as u32).checked_sub(1) {
+            None => return Ok(None),
+            Some(n) => n,
+        }
+    };
+    Ok(Some(CountThreshold { counts: n, tail: at_most(mean, n)? }))
 }
