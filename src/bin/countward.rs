@@ -1,1 +1,325 @@
-fn main() {}
+//! `countward`: the host tool over the countward library (feature `cli`).
+//!
+//! A thin shell: every number printed is computed by the library.
+
+use clap::error::{ContextKind, ContextValue, ErrorKind};
+use clap::{Args, Parser, Subcommand, ValueEnum};
+use countward::fixed::{FixedAlpha, FixedMean};
+use countward::poisson::{self, MAX_MEAN};
+use countward::{Error, gap};
+use serde_json::{Value, json};
+use std::process::ExitCode;
+
+const SAFETY: &str = "Safety: radiation alarms protect people. Settings computed here must be validated \
+for the instrument they run on, and local regulations and licensed radiation-protection practice take \
+precedence over anything this tool prints.";
+
+/// Counting statistics for Poisson event streams: tails, count thresholds,
+/// exact limits on a mean, and silence thresholds.
+#[derive(Parser)]
+#[command(name = "countward", version, after_help = SAFETY)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Poisson tail probability P(N >= K) or P(N <= K) for a mean.
+    Tail(TailArgs),
+    /// Alarm threshold (smallest n with P(N >= n) <= alpha) or, with --low,
+    /// fault threshold (largest n with P(N <= n) <= alpha).
+    Threshold(ThresholdArgs),
+    /// Exact (Garwood) confidence limits on a Poisson mean from observed counts.
+    Limits(LimitsArgs),
+    /// Silence threshold: shortest time after which fewer than K events is improbable at alpha.
+    Silence(SilenceArgs),
+}
+
+/// Which tier of the library computes the answer.
+#[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
+enum Math {
+    /// Double precision (the reference).
+    F64,
+    /// Single precision, as on an MCU with an FPU.
+    F32,
+    /// Integer-only fixed point, as on an MCU without an FPU.
+    Fixed,
+}
+
+#[derive(Args)]
+#[command(group(clap::ArgGroup::new("side").required(true).args(["at_least", "at_most"])))]
+struct TailArgs {
+    /// Expected counts (Poisson mean), 0 to 2e9.
+    #[arg(long, value_name = "M", allow_negative_numbers = true)]
+    mean: f64,
+    /// Probability of K or more counts.
+    #[arg(long, value_name = "K")]
+    at_least: Option<u32>,
+    /// Probability of K or fewer counts.
+    #[arg(long, value_name = "K")]
+    at_most: Option<u32>,
+    /// Arithmetic tier.
+    #[arg(long, value_enum, default_value = "f64")]
+    math: Math,
+    /// Print one JSON object.
+    #[arg(long)]
+    json: bool,
+}
+
+#[derive(Args)]
+struct ThresholdArgs {
+    /// Expected background counts per check (Poisson mean), 0 to 2e9.
+    #[arg(long, value_name = "M", allow_negative_numbers = true)]
+    mean: f64,
+    /// False-alarm probability per check, strictly between 0 and 1.
+    #[arg(long, value_name = "A", allow_negative_numbers = true)]
+    alpha: f64,
+    /// Compute the fault (too few counts) threshold instead of the alarm threshold.
+    #[arg(long)]
+    low: bool,
+    /// Arithmetic tier.
+    #[arg(long, value_enum, default_value = "f64")]
+    math: Math,
+    /// Print one JSON object.
+    #[arg(long)]
+    json: bool,
+}
+
+#[derive(Args)]
+struct LimitsArgs {
+    /// Observed counts.
+    #[arg(long, value_name = "N")]
+    counts: u32,
+    /// Confidence level, strictly between 0 and 1 (e.g. 0.95).
+    #[arg(long, value_name = "L", allow_negative_numbers = true)]
+    level: f64,
+    /// One-sided upper limit (lower is 0).
+    #[arg(long)]
+    one_sided: bool,
+    /// Print one JSON object.
+    #[arg(long)]
+    json: bool,
+}
+
+#[derive(Args)]
+struct SilenceArgs {
+    /// Event rate in counts per second (> 0).
+    #[arg(long, value_name = "R", allow_negative_numbers = true)]
+    rate_cps: f64,
+    /// Probability that a live source stays this quiet, strictly between 0 and 1.
+    #[arg(long, value_name = "A", allow_negative_numbers = true)]
+    alpha: f64,
+    /// Wait for the K-th event (default 1: any event).
+    #[arg(long, value_name = "K", default_value_t = 1)]
+    events: u32,
+    /// Print one JSON object.
+    #[arg(long)]
+    json: bool,
+}
+
+/// A one-line failure: exit status 2.
+struct Failure(String);
+
+fn bad(flag: &str, value: impl std::fmt::Display, why: &str) -> Failure {
+    Failure(format!("error: {flag} {value}: {why}"))
+}
+
+/// Validates a number given on the command line, naming the flag.
+fn check(flag: &str, v: f64, ok: bool, why: &str) -> Result<f64, Failure> {
+    if !v.is_finite() {
+        return Err(bad(flag, v, "must be a finite number"));
+    }
+    if !ok {
+        return Err(bad(flag, v, why));
+    }
+    Ok(v)
+}
+
+fn check_mean(v: f64) -> Result<f64, Failure> {
+    check("--mean", v, (0.0..=MAX_MEAN).contains(&v), "must be between 0 and 2e9")
+}
+
+fn check_open(flag: &str, v: f64) -> Result<f64, Failure> {
+    check(flag, v, v > 0.0 && v < 1.0, "must lie strictly between 0 and 1")
+}
+
+fn lib(e: Error) -> Failure {
+    Failure(format!("error: {e}"))
+}
+
+/// Human-readable number: plain for moderate magnitudes, exponent otherwise.
+fn num(v: f64) -> String {
+    let a = v.abs();
+    if v == 0.0 || (1e-4..1e6).contains(&a) { format!("{v}") } else { format!("{v:e}") }
+}
+
+fn fixed_mean(mean: f64) -> Result<FixedMean, Failure> {
+    FixedMean::from_raw((mean * 4_294_967_296.0).round() as u64).map_err(lib)
+}
+
+fn fixed_alpha(alpha: f64) -> Result<FixedAlpha, Failure> {
+    FixedAlpha::from_ln_raw((alpha.ln() * 4_294_967_296.0).round() as i64)
+        .map_err(|_| bad("--alpha", alpha, "is too small for the fixed tier (ln alpha must be at least -1e5)"))
+}
+
+fn q32(v: i64) -> f64 {
+    if v == i64::MIN { f64::NEG_INFINITY } else { v as f64 / 4_294_967_296.0 }
+}
+
+fn tail(a: TailArgs) -> Result<(String, Value), Failure> {
+    let mean = check_mean(a.mean)?;
+    let (k, upper) = match (a.at_least, a.at_most) {
+        (Some(k), None) => (k, true),
+        (None, Some(k)) => (k, false),
+        _ => return Err(Failure("error: give exactly one of --at-least and --at-most".into())),
+    };
+    let (p, ln_p) = match a.math {
+        Math::F64 => {
+            let t = if upper { poisson::at_least(mean, k) } else { poisson::at_most(mean, k) }.map_err(lib)?;
+            (t.p, t.ln_p)
+        }
+        Math::F32 => {
+            let m = mean as f32;
+            let t = if upper { poisson::at_least(m, k) } else { poisson::at_most(m, k) }.map_err(lib)?;
+            (f64::from(t.p), f64::from(t.ln_p))
+        }
+        Math::Fixed => {
+            let m = fixed_mean(mean)?;
+            let l = if upper { countward::fixed::ln_at_least_q32(m, k) } else { countward::fixed::ln_at_most_q32(m, k) };
+            let l = q32(l);
+            (l.exp(), l)
+        }
+    };
+    let rel = if upper { ">=" } else { "<=" };
+    let text = format!("P(N {rel} {k} | mean {}) = {}   (ln p = {})", num(mean), num(p), num(ln_p));
+    Ok((text, json!({ "p": p, "ln_p": ln_p })))
+}
+
+fn threshold(a: ThresholdArgs) -> Result<(String, Value), Failure> {
+    let mean = check_mean(a.mean)?;
+    let alpha = check_open("--alpha", a.alpha)?;
+    // (counts, tail p) or None.
+    let found: Option<(u32, f64)> = match (a.math, a.low) {
+        (Math::F64, false) => poisson::alarm_threshold(mean, alpha).map(|t| Some((t.counts, t.tail.p))).map_err(lib)?,
+        (Math::F64, true) => poisson::fault_threshold(mean, alpha).map(|t| t.map(|t| (t.counts, t.tail.p))).map_err(lib)?,
+        (Math::F32, false) => poisson::alarm_threshold(mean as f32, alpha as f32)
+            .map(|t| Some((t.counts, f64::from(t.tail.p))))
+            .map_err(lib)?,
+        (Math::F32, true) => poisson::fault_threshold(mean as f32, alpha as f32)
+            .map(|t| t.map(|t| (t.counts, f64::from(t.tail.p))))
+            .map_err(lib)?,
+        (Math::Fixed, low) => {
+            let (m, al) = (fixed_mean(mean)?, fixed_alpha(alpha)?);
+            let t = if low {
+                countward::fixed::fault_threshold(m, al).map_err(lib)?
+            } else {
+                Some(countward::fixed::alarm_threshold(m, al).map_err(lib)?)
+            };
+            t.map(|t| (t.counts, q32(t.ln_tail_q32).exp()))
+        }
+    };
+    let text = match (found, a.low) {
+        (Some((n, p)), false) => format!(
+            "alarm threshold: {n} counts  (alarm when a check reaches {n}; P(N >= {n}) = {} <= alpha {})",
+            num(p),
+            num(alpha)
+        ),
+        (Some((n, p)), true) => format!(
+            "fault threshold: {n} counts  (fault when a check reads {n} or fewer; P(N <= {n}) = {} <= alpha {})",
+            num(p),
+            num(alpha)
+        ),
+        (None, _) => format!(
+            "fault threshold: none  (even zero counts has probability {} > alpha {})",
+            num((-mean).exp()),
+            num(alpha)
+        ),
+    };
+    let v = match found {
+        Some((n, p)) => json!({ "counts": n, "p": p }),
+        None => json!({ "counts": null, "p": null }),
+    };
+    Ok((text, v))
+}
+
+fn limits(a: LimitsArgs) -> Result<(String, Value), Failure> {
+    let level = check_open("--level", a.level)?;
+    let (lower, upper) = if a.one_sided {
+        (0.0, poisson::exact_upper_limit(a.counts, level).map_err(lib)?)
+    } else {
+        let l = poisson::exact_limits(a.counts, level).map_err(lib)?;
+        (l.lower, l.upper)
+    };
+    let kind = if a.one_sided { "one-sided upper" } else { "two-sided" };
+    let text = format!(
+        "{} counts, {kind} {}%: mean between {} and {}",
+        a.counts,
+        num(level * 100.0),
+        num(lower),
+        num(upper)
+    );
+    Ok((text, json!({ "lower": lower, "upper": upper })))
+}
+
+fn silence(a: SilenceArgs) -> Result<(String, Value), Failure> {
+    let rate = check("--rate-cps", a.rate_cps, a.rate_cps > 0.0, "must be greater than 0")?;
+    let alpha = check_open("--alpha", a.alpha)?;
+    if a.events == 0 {
+        return Err(bad("--events", 0, "must be at least 1"));
+    }
+    let t = gap::silence_threshold_s(rate, alpha, a.events).map_err(lib)?;
+    let what = if a.events == 1 { "no event".to_string() } else { format!("fewer than {} events", a.events) };
+    let text = format!("silence threshold: {} s  (P({what} in {} s at {} cps) = {})", num(t), num(t), num(rate), num(alpha));
+    Ok((text, json!({ "seconds": t })))
+}
+
+/// Flattens a clap error to one line naming what was wrong.
+fn one_line(e: &clap::Error) -> String {
+    if e.kind() == ErrorKind::MissingRequiredArgument {
+        if let Some(ContextValue::Strings(args)) = e.get(ContextKind::InvalidArg) {
+            return format!("error: missing required {}", args.join(", "));
+        }
+    }
+    let rendered = e.render().to_string();
+    let first = rendered.split("\n\n").next().unwrap_or("error: bad command line");
+    first.split_whitespace().collect::<Vec<_>>().join(" ")
+}
+
+fn main() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(c) => c,
+        Err(e) => {
+            if matches!(e.kind(), ErrorKind::DisplayHelp | ErrorKind::DisplayVersion) {
+                let _ = e.print();
+                return ExitCode::SUCCESS;
+            }
+            if e.kind() == ErrorKind::DisplayHelpOnMissingArgumentOrSubcommand {
+                let _ = e.print();
+                return ExitCode::from(2);
+            }
+            eprintln!("{}", one_line(&e));
+            return ExitCode::from(2);
+        }
+    };
+    let (json_out, result) = match cli.command {
+        Command::Tail(a) => (a.json, tail(a)),
+        Command::Threshold(a) => (a.json, threshold(a)),
+        Command::Limits(a) => (a.json, limits(a)),
+        Command::Silence(a) => (a.json, silence(a)),
+    };
+    match result {
+        Ok((text, value)) => {
+            if json_out {
+                println!("{value}");
+            } else {
+                println!("{text}");
+            }
+            ExitCode::SUCCESS
+        }
+        Err(Failure(msg)) => {
+            eprintln!("{msg}");
+            ExitCode::from(2)
+        }
+    }
+}
