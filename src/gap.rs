@@ -6,10 +6,10 @@
 //! P(no event in t) = e^{-λt} and P(fewer than k events in t) = Q(k, λt), the
 //! chance that the k-th event (an Erlang(k, λ) time) comes later than t.
 
+use crate::Real;
 use crate::error::{Error, Param, check_open_unit, check_range};
 use crate::math::{gamma_q_inv, tails};
 use crate::poisson::Prob;
-use crate::Real;
 
 fn check_rate<F: Real>(rate_cps: F) -> Result<F, Error> {
     check_range(rate_cps, F::ZERO, F::MAX, Param::RateCps)?;
@@ -31,21 +31,34 @@ fn check_rate<F: Real>(rate_cps: F) -> Result<F, Error> {
 /// let p = silence_probability(1.0_f64 / 60.0, 600.0, 1).unwrap();
 /// assert!((p.p / (-10.0_f64).exp() - 1.0).abs() < 1e-13);
 /// ```
-pub fn silence_probability<F: Real>(rate_cps: F, seconds: F, events: u32) -> Result<Prob<F>, Error> {
+pub fn silence_probability<F: Real>(
+    rate_cps: F,
+    seconds: F,
+    events: u32,
+) -> Result<Prob<F>, Error> {
     let rate = check_rate(rate_cps)?;
     let t = check_range(seconds, F::ZERO, F::MAX, Param::Seconds)?;
     if events == 0 {
-        return Ok(Prob { p: F::ZERO, ln_p: -F::INFINITY });
+        return Ok(Prob {
+            p: F::ZERO,
+            ln_p: -F::INFINITY,
+        });
     }
     let mean = rate * t;
     if !mean.is_finite() {
         return Err(Error::OutOfRange(Param::Seconds));
     }
     if events == 1 {
-        return Ok(Prob { p: (-mean).exp(), ln_p: -mean });
+        return Ok(Prob {
+            p: (-mean).exp(),
+            ln_p: -mean,
+        });
     }
     let g = tails(F::of_u32(events), mean)?;
-    Ok(Prob { p: g.upper(), ln_p: g.ln_upper() })
+    Ok(Prob {
+        p: g.upper(),
+        ln_p: g.ln_upper(),
+    })
 }
 
 /// The silence threshold: the shortest time t (seconds) with

@@ -32,7 +32,11 @@ pub(crate) struct Bracket {
 impl Bracket {
     /// The switch point once the bracket is closed (`hi - lo == 1`).
     pub(crate) fn answer(self, max: u32) -> Option<u32> {
-        if self.hi > i64::from(max) { None } else { Some(self.hi as u32) }
+        if self.hi > i64::from(max) {
+            None
+        } else {
+            Some(self.hi as u32)
+        }
     }
 }
 

@@ -5,7 +5,9 @@
 
 use countward::gap::{silence_probability, silence_threshold_s};
 use countward::math::{gamma_q, lambert_w0, lambert_wm1};
-use countward::poisson::{alarm_threshold, at_least, at_most, exact_limits, exact_upper_limit, fault_threshold, pmf};
+use countward::poisson::{
+    alarm_threshold, at_least, at_most, exact_limits, exact_upper_limit, fault_threshold, pmf,
+};
 
 fn rel(a: f64, b: f64) -> f64 {
     ((a - b) / b).abs()
@@ -28,7 +30,10 @@ fn upper_tails_f64() {
     ];
     for &(n, mu, want) in cases {
         let got = at_least(mu, n).unwrap().p;
-        assert!(rel(got, want) < 1e-12, "P(N >= {n}; {mu}) = {got:e}, want {want:e}");
+        assert!(
+            rel(got, want) < 1e-12,
+            "P(N >= {n}; {mu}) = {got:e}, want {want:e}"
+        );
     }
     // Rows 10 and 12 are quoted to 11–12 digits only.
     assert!(rel(at_least(1e7_f64, 10015811).unwrap().p, 2.8895717062e-7) < 1e-10);
@@ -60,17 +65,39 @@ fn gamma_q_large_shape() {
 #[test]
 fn alarm_thresholds_f64() {
     let cases: &[(f64, f64, u32, f64)] = &[
-        (1e-6, 1e-3, 1, 0.999), (1e-6, 1e-6, 1, 5.0e-7), (1e-6, 1e-9, 2, 0.9995),
-        (1e-3, 1e-3, 1, 5.0e-4), (1e-3, 1e-6, 2, 0.50), (1e-3, 1e-9, 3, 0.83),
-        (0.1, 1e-3, 3, 0.85), (0.1, 1e-6, 5, 0.92), (0.1, 1e-9, 7, 0.275),
-        (1.0, 1e-3, 6, 0.41), (1.0, 1e-6, 10, 0.125), (1.0, 1e-9, 12, 0.17),
-        (10.0, 1e-3, 22, 0.30), (10.0, 1e-6, 29, 0.24), (10.0, 1e-9, 35, 0.39),
-        (100.0, 1e-3, 133, 0.065), (100.0, 1e-6, 152, 0.20), (100.0, 1e-9, 167, 0.0171),
-        (1e3, 1e-3, 1100, 0.037), (1e3, 1e-6, 1155, 0.0561), (1e3, 1e-9, 1196, 0.018),
-        (1e4, 1e-3, 10311, 1.9e-3), (1e4, 1e-6, 10480, 0.0209), (1e4, 1e-9, 10607, 4.75e-3),
-        (1e5, 1e-3, 100980, 1.49e-3), (1e5, 1e-6, 101508, 4.04e-3), (1e5, 1e-9, 101903, 1.5e-4),
-        (1e6, 1e-3, 1003093, 5.3e-4), (1e6, 1e-6, 1004758, 2.4e-3), (1e6, 1e-9, 1006005, 8.2e-4),
-        (1e7, 1e-3, 10009775, 1.0e-4), (1e7, 1e-6, 10015036, 4.0e-4), (1e7, 1e-9, 10018974, 1.2e-4),
+        (1e-6, 1e-3, 1, 0.999),
+        (1e-6, 1e-6, 1, 5.0e-7),
+        (1e-6, 1e-9, 2, 0.9995),
+        (1e-3, 1e-3, 1, 5.0e-4),
+        (1e-3, 1e-6, 2, 0.50),
+        (1e-3, 1e-9, 3, 0.83),
+        (0.1, 1e-3, 3, 0.85),
+        (0.1, 1e-6, 5, 0.92),
+        (0.1, 1e-9, 7, 0.275),
+        (1.0, 1e-3, 6, 0.41),
+        (1.0, 1e-6, 10, 0.125),
+        (1.0, 1e-9, 12, 0.17),
+        (10.0, 1e-3, 22, 0.30),
+        (10.0, 1e-6, 29, 0.24),
+        (10.0, 1e-9, 35, 0.39),
+        (100.0, 1e-3, 133, 0.065),
+        (100.0, 1e-6, 152, 0.20),
+        (100.0, 1e-9, 167, 0.0171),
+        (1e3, 1e-3, 1100, 0.037),
+        (1e3, 1e-6, 1155, 0.0561),
+        (1e3, 1e-9, 1196, 0.018),
+        (1e4, 1e-3, 10311, 1.9e-3),
+        (1e4, 1e-6, 10480, 0.0209),
+        (1e4, 1e-9, 10607, 4.75e-3),
+        (1e5, 1e-3, 100980, 1.49e-3),
+        (1e5, 1e-6, 101508, 4.04e-3),
+        (1e5, 1e-9, 101903, 1.5e-4),
+        (1e6, 1e-3, 1003093, 5.3e-4),
+        (1e6, 1e-6, 1004758, 2.4e-3),
+        (1e6, 1e-9, 1006005, 8.2e-4),
+        (1e7, 1e-3, 10009775, 1.0e-4),
+        (1e7, 1e-6, 10015036, 4.0e-4),
+        (1e7, 1e-9, 10018974, 1.2e-4),
     ];
     for &(mu, alpha, want, margin) in cases {
         let t = alarm_threshold(mu, alpha).unwrap();
@@ -79,7 +106,11 @@ fn alarm_thresholds_f64() {
         if margin >= 1e-3 {
             assert_eq!(f.counts, want, "f32: mu = {mu}, alpha = {alpha}");
         } else {
-            assert!(f.counts.abs_diff(want) <= 1, "f32 near tie: mu = {mu}, alpha = {alpha}: {}", f.counts);
+            assert!(
+                f.counts.abs_diff(want) <= 1,
+                "f32 near tie: mu = {mu}, alpha = {alpha}: {}",
+                f.counts
+            );
         }
     }
 }
@@ -97,21 +128,34 @@ fn critical_count_background_ten() {
 #[test]
 fn garwood_limits() {
     let up: &[(u32, f64, f64)] = &[
-        (0, 0.95, 2.995732), (0, 0.90, 2.302585), (0, 0.99, 4.605170),
-        (1, 0.95, 4.743865), (1, 0.975, 5.571643), (10, 0.95, 16.96222),
-        (100, 0.95, 118.0793), (50, 0.99, 69.06724),
+        (0, 0.95, 2.995732),
+        (0, 0.90, 2.302585),
+        (0, 0.99, 4.605170),
+        (1, 0.95, 4.743865),
+        (1, 0.975, 5.571643),
+        (10, 0.95, 16.96222),
+        (100, 0.95, 118.0793),
+        (50, 0.99, 69.06724),
     ];
     for &(n, cl, want) in up {
         let got = exact_upper_limit(n, cl).unwrap();
         assert!(rel(got, want) < 1e-6, "U({n}, {cl}) = {got}, want {want}");
     }
     let two: &[(u32, f64, f64, f64)] = &[
-        (0, 0.95, 0.0, 3.688879), (5, 0.95, 1.623486, 11.66833), (10, 0.95, 4.795389, 18.39036),
-        (100, 0.95, 81.36399, 121.62679), (10, 0.99, 3.716922, 21.39783), (1, 0.99, 0.00501254, 7.430130),
+        (0, 0.95, 0.0, 3.688879),
+        (5, 0.95, 1.623486, 11.66833),
+        (10, 0.95, 4.795389, 18.39036),
+        (100, 0.95, 81.36399, 121.62679),
+        (10, 0.99, 3.716922, 21.39783),
+        (1, 0.99, 0.00501254, 7.430130),
     ];
     for &(n, cl, lo, hi) in two {
         let l = exact_limits(n, cl).unwrap();
-        assert!((l.lower - lo).abs() <= 1e-6 * lo.max(1e-3), "L({n}, {cl}) = {}", l.lower);
+        assert!(
+            (l.lower - lo).abs() <= 1e-6 * lo.max(1e-3),
+            "L({n}, {cl}) = {}",
+            l.lower
+        );
         assert!(rel(l.upper, hi) < 1e-6, "U({n}, {cl}) = {}", l.upper);
     }
     // Closed forms: -ln 0.05, -ln 0.025 (common practice, no source needed beyond the identity).
@@ -127,12 +171,21 @@ fn silence_thresholds() {
     assert!((silence_threshold_s(lam, 1e-6, 1).unwrap() - 828.9306).abs() < 1e-4);
     assert!((silence_threshold_s(lam, 1e-9, 1).unwrap() - 1243.396).abs() < 1e-3);
     let k: &[(u32, f64, f64)] = &[
-        (2, 1e-3, 9.233413), (2, 1e-6, 16.688421), (3, 1e-3, 11.228872), (3, 1e-6, 19.129168),
-        (5, 1e-3, 14.794149), (5, 1e-6, 23.431523), (10, 1e-3, 22.657373), (10, 1e-6, 32.710341),
+        (2, 1e-3, 9.233413),
+        (2, 1e-6, 16.688421),
+        (3, 1e-3, 11.228872),
+        (3, 1e-6, 19.129168),
+        (5, 1e-3, 14.794149),
+        (5, 1e-6, 23.431523),
+        (10, 1e-3, 22.657373),
+        (10, 1e-6, 32.710341),
     ];
     for &(events, alpha, want) in k {
         let got = silence_threshold_s(1.0_f64, alpha, events).unwrap();
-        assert!((got - want).abs() < 2e-6, "k = {events}, alpha = {alpha}: {got}");
+        assert!(
+            (got - want).abs() < 2e-6,
+            "k = {events}, alpha = {alpha}: {got}"
+        );
         // The threshold's own tail is α.
         let p = silence_probability(1.0_f64, got, events).unwrap().p;
         assert!(rel(p, alpha) < 1e-10);
@@ -148,16 +201,22 @@ fn lambert_w_values() {
     assert_eq!(lambert_w0(-0.36787944117144233_f64).unwrap(), -1.0);
     assert_eq!(lambert_wm1(-0.36787944117144233_f64).unwrap(), -1.0);
     let w0: &[(f64, f64)] = &[
-        (-0.3, -0.48940222718021496904), (-0.1, -0.11183255915896296483),
-        (-0.01, -0.010101527198538753273), (-1e-6, -1.0000010000015000027e-6),
-        (0.1, 0.0912765271608622643), (10.0, 1.7455280027406993831), (1e6, 11.383358086140052622),
+        (-0.3, -0.48940222718021496904),
+        (-0.1, -0.11183255915896296483),
+        (-0.01, -0.010101527198538753273),
+        (-1e-6, -1.0000010000015000027e-6),
+        (0.1, 0.0912765271608622643),
+        (10.0, 1.7455280027406993831),
+        (1e6, 11.383358086140052622),
     ];
     for &(x, want) in w0 {
         assert!(rel(lambert_w0(x).unwrap(), want) < 1e-15, "W0({x})");
     }
     let wm1: &[(f64, f64)] = &[
-        (-0.3, -1.781337023421627612), (-0.1, -3.5771520639572972184),
-        (-0.01, -6.4727751243940046947), (-1e-6, -16.626508901372473388),
+        (-0.3, -1.781337023421627612),
+        (-0.1, -3.5771520639572972184),
+        (-0.01, -6.4727751243940046947),
+        (-1e-6, -16.626508901372473388),
     ];
     for &(x, want) in wm1 {
         assert!(rel(lambert_wm1(x).unwrap(), want) < 1e-15, "W-1({x})");
@@ -183,7 +242,10 @@ fn upper_tails_f32() {
     ];
     for &(n, mu, want) in cases {
         let got = at_least(mu, n).unwrap().p as f64;
-        assert!(rel(got, want) < 1e-5, "f32 P(N >= {n}; {mu}) = {got:e}, want {want:e}");
+        assert!(
+            rel(got, want) < 1e-5,
+            "f32 P(N >= {n}; {mu}) = {got:e}, want {want:e}"
+        );
     }
 }
 

@@ -137,11 +137,21 @@ fn check(flag: &str, v: f64, ok: bool, why: &str) -> Result<f64, Failure> {
 }
 
 fn check_mean(v: f64) -> Result<f64, Failure> {
-    check("--mean", v, (0.0..=MAX_MEAN).contains(&v), "must be between 0 and 2e9")
+    check(
+        "--mean",
+        v,
+        (0.0..=MAX_MEAN).contains(&v),
+        "must be between 0 and 2e9",
+    )
 }
 
 fn check_open(flag: &str, v: f64) -> Result<f64, Failure> {
-    check(flag, v, v > 0.0 && v < 1.0, "must lie strictly between 0 and 1")
+    check(
+        flag,
+        v,
+        v > 0.0 && v < 1.0,
+        "must lie strictly between 0 and 1",
+    )
 }
 
 fn lib(e: Error) -> Failure {
@@ -151,7 +161,11 @@ fn lib(e: Error) -> Failure {
 /// Human-readable number: plain for moderate magnitudes, exponent otherwise.
 fn num(v: f64) -> String {
     let a = v.abs();
-    if v == 0.0 || (1e-4..1e6).contains(&a) { format!("{v}") } else { format!("{v:e}") }
+    if v == 0.0 || (1e-4..1e6).contains(&a) {
+        format!("{v}")
+    } else {
+        format!("{v:e}")
+    }
 }
 
 fn fixed_mean(mean: f64) -> Result<FixedMean, Failure> {
@@ -159,12 +173,21 @@ fn fixed_mean(mean: f64) -> Result<FixedMean, Failure> {
 }
 
 fn fixed_alpha(alpha: f64) -> Result<FixedAlpha, Failure> {
-    FixedAlpha::from_ln_raw((alpha.ln() * 4_294_967_296.0).round() as i64)
-        .map_err(|_| bad("--alpha", alpha, "is too small for the fixed tier (ln alpha must be at least -1e5)"))
+    FixedAlpha::from_ln_raw((alpha.ln() * 4_294_967_296.0).round() as i64).map_err(|_| {
+        bad(
+            "--alpha",
+            alpha,
+            "is too small for the fixed tier (ln alpha must be at least -1e5)",
+        )
+    })
 }
 
 fn q32(v: i64) -> f64 {
-    if v == i64::MIN { f64::NEG_INFINITY } else { v as f64 / 4_294_967_296.0 }
+    if v == i64::MIN {
+        f64::NEG_INFINITY
+    } else {
+        v as f64 / 4_294_967_296.0
+    }
 }
 
 fn tail(a: TailArgs) -> Result<(String, Value), Failure> {
@@ -172,27 +195,50 @@ fn tail(a: TailArgs) -> Result<(String, Value), Failure> {
     let (k, upper) = match (a.at_least, a.at_most) {
         (Some(k), None) => (k, true),
         (None, Some(k)) => (k, false),
-        _ => return Err(Failure("error: give exactly one of --at-least and --at-most".into())),
+        _ => {
+            return Err(Failure(
+                "error: give exactly one of --at-least and --at-most".into(),
+            ));
+        }
     };
     let (p, ln_p) = match a.math {
         Math::F64 => {
-            let t = if upper { poisson::at_least(mean, k) } else { poisson::at_most(mean, k) }.map_err(lib)?;
+            let t = if upper {
+                poisson::at_least(mean, k)
+            } else {
+                poisson::at_most(mean, k)
+            }
+            .map_err(lib)?;
             (t.p, t.ln_p)
         }
         Math::F32 => {
             let m = mean as f32;
-            let t = if upper { poisson::at_least(m, k) } else { poisson::at_most(m, k) }.map_err(lib)?;
+            let t = if upper {
+                poisson::at_least(m, k)
+            } else {
+                poisson::at_most(m, k)
+            }
+            .map_err(lib)?;
             (f64::from(t.p), f64::from(t.ln_p))
         }
         Math::Fixed => {
             let m = fixed_mean(mean)?;
-            let l = if upper { countward::fixed::ln_at_least_q32(m, k) } else { countward::fixed::ln_at_most_q32(m, k) };
+            let l = if upper {
+                countward::fixed::ln_at_least_q32(m, k)
+            } else {
+                countward::fixed::ln_at_most_q32(m, k)
+            };
             let l = q32(l);
             (l.exp(), l)
         }
     };
     let rel = if upper { ">=" } else { "<=" };
-    let text = format!("P(N {rel} {k} | mean {}) = {}   (ln p = {})", num(mean), num(p), num(ln_p));
+    let text = format!(
+        "P(N {rel} {k} | mean {}) = {}   (ln p = {})",
+        num(mean),
+        num(p),
+        num(ln_p)
+    );
     Ok((text, json!({ "p": p, "ln_p": ln_p })))
 }
 
@@ -201,8 +247,12 @@ fn threshold(a: ThresholdArgs) -> Result<(String, Value), Failure> {
     let alpha = check_open("--alpha", a.alpha)?;
     // (counts, tail p) or None.
     let found: Option<(u32, f64)> = match (a.math, a.low) {
-        (Math::F64, false) => poisson::alarm_threshold(mean, alpha).map(|t| Some((t.counts, t.tail.p))).map_err(lib)?,
-        (Math::F64, true) => poisson::fault_threshold(mean, alpha).map(|t| t.map(|t| (t.counts, t.tail.p))).map_err(lib)?,
+        (Math::F64, false) => poisson::alarm_threshold(mean, alpha)
+            .map(|t| Some((t.counts, t.tail.p)))
+            .map_err(lib)?,
+        (Math::F64, true) => poisson::fault_threshold(mean, alpha)
+            .map(|t| t.map(|t| (t.counts, t.tail.p)))
+            .map_err(lib)?,
         (Math::F32, false) => poisson::alarm_threshold(mean as f32, alpha as f32)
             .map(|t| Some((t.counts, f64::from(t.tail.p))))
             .map_err(lib)?,
@@ -246,12 +296,19 @@ fn threshold(a: ThresholdArgs) -> Result<(String, Value), Failure> {
 fn limits(a: LimitsArgs) -> Result<(String, Value), Failure> {
     let level = check_open("--level", a.level)?;
     let (lower, upper) = if a.one_sided {
-        (0.0, poisson::exact_upper_limit(a.counts, level).map_err(lib)?)
+        (
+            0.0,
+            poisson::exact_upper_limit(a.counts, level).map_err(lib)?,
+        )
     } else {
         let l = poisson::exact_limits(a.counts, level).map_err(lib)?;
         (l.lower, l.upper)
     };
-    let kind = if a.one_sided { "one-sided upper" } else { "two-sided" };
+    let kind = if a.one_sided {
+        "one-sided upper"
+    } else {
+        "two-sided"
+    };
     let text = format!(
         "{} counts, {kind} {}%: mean between {} and {}",
         a.counts,
@@ -263,14 +320,29 @@ fn limits(a: LimitsArgs) -> Result<(String, Value), Failure> {
 }
 
 fn silence(a: SilenceArgs) -> Result<(String, Value), Failure> {
-    let rate = check("--rate-cps", a.rate_cps, a.rate_cps > 0.0, "must be greater than 0")?;
+    let rate = check(
+        "--rate-cps",
+        a.rate_cps,
+        a.rate_cps > 0.0,
+        "must be greater than 0",
+    )?;
     let alpha = check_open("--alpha", a.alpha)?;
     if a.events == 0 {
         return Err(bad("--events", 0, "must be at least 1"));
     }
     let t = gap::silence_threshold_s(rate, alpha, a.events).map_err(lib)?;
-    let what = if a.events == 1 { "no event".to_string() } else { format!("fewer than {} events", a.events) };
-    let text = format!("silence threshold: {} s  (P({what} in {} s at {} cps) = {})", num(t), num(t), num(rate), num(alpha));
+    let what = if a.events == 1 {
+        "no event".to_string()
+    } else {
+        format!("fewer than {} events", a.events)
+    };
+    let text = format!(
+        "silence threshold: {} s  (P({what} in {} s at {} cps) = {})",
+        num(t),
+        num(t),
+        num(rate),
+        num(alpha)
+    );
     Ok((text, json!({ "seconds": t })))
 }
 
@@ -282,7 +354,10 @@ fn one_line(e: &clap::Error) -> String {
         }
     }
     let rendered = e.render().to_string();
-    let first = rendered.split("\n\n").next().unwrap_or("error: bad command line");
+    let first = rendered
+        .split("\n\n")
+        .next()
+        .unwrap_or("error: bad command line");
     first.split_whitespace().collect::<Vec<_>>().join(" ")
 }
 

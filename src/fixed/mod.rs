@@ -145,7 +145,11 @@ fn ln_at_least_64(mean: FixedMean, k: u32) -> i128 {
 
 /// ln P(N ≤ k) in Q64.
 fn ln_at_most_64(mean: FixedMean, k: u32) -> i128 {
-    if mean.0 == 0 { 0 } else { tail::tails(u64::from(k) + 1, mean.0).ln_upper() }
+    if mean.0 == 0 {
+        0
+    } else {
+        tail::tails(u64::from(k) + 1, mean.0).ln_upper()
+    }
 }
 
 /// ln P(N ≥ k) in Q32.32 for a Poisson count with mean `mean`
@@ -208,7 +212,10 @@ pub fn alarm_threshold(mean: FixedMean, alpha: FixedAlpha) -> Result<FixedThresh
         Ok::<bool, Error>(ln_at_least_64(mean, n) <= ln_alpha)
     })?
     .ok_or(Error::NoConvergence)?;
-    Ok(FixedThreshold { counts: n, ln_tail_q32: ln_at_least_q32(mean, n) })
+    Ok(FixedThreshold {
+        counts: n,
+        ln_tail_q32: ln_at_least_q32(mean, n),
+    })
 }
 
 /// The fault threshold (largest n with P(N ≤ n) ≤ α, or `None`), integer-only.
@@ -221,12 +228,18 @@ pub fn alarm_threshold(mean: FixedMean, alpha: FixedAlpha) -> Result<FixedThresh
 /// let f = countward::poisson::fault_threshold(1000.0_f64, 1e-4).unwrap();
 /// assert_eq!(t.map(|t| t.counts), f.map(|f| f.counts));
 /// ```
-pub fn fault_threshold(mean: FixedMean, alpha: FixedAlpha) -> Result<Option<FixedThreshold>, Error> {
+pub fn fault_threshold(
+    mean: FixedMean,
+    alpha: FixedAlpha,
+) -> Result<Option<FixedThreshold>, Error> {
     let ln_alpha = i128::from(alpha.0) << 32;
     let (g, stride) = guess(mean, alpha, false);
     let first_over = first_accepted(0, u32::MAX, g, stride, |n| {
         Ok::<bool, Error>(ln_at_most_64(mean, n) > ln_alpha)
     })?
     .ok_or(Error::NoConvergence)?;
-    Ok(first_over.checked_sub(1).map(|n| FixedThreshold { counts: n, ln_tail_q32: ln_at_most_q32(mean, n) }))
+    Ok(first_over.checked_sub(1).map(|n| FixedThreshold {
+        counts: n,
+        ln_tail_q32: ln_at_most_q32(mean, n),
+    }))
 }

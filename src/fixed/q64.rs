@@ -37,7 +37,11 @@ pub(crate) fn ln(x: u128, frac: u32) -> i128 {
     let top = msb(x);
     let e = top as i128 - frac as i128;
     // Mantissa in Q1.63 (u64 range), truncating the bits below.
-    let m: u128 = if top >= 63 { x >> (top - 63) } else { x << (63 - top) };
+    let m: u128 = if top >= 63 {
+        x >> (top - 63)
+    } else {
+        x << (63 - top)
+    };
     let one_63: u128 = 1 << 63;
     // s in Q64: (m - 1)/(m + 1).
     let s: u128 = ((m - one_63) << 64) / (m + one_63);
@@ -107,11 +111,24 @@ mod tests {
 
     #[test]
     fn ln_matches_libm() {
-        for &x in &[1.0_f64, 1.5, 2.0, 3.0, 1e-9, 0.3, 1e9, 12345.678, 1.0 + 1e-12] {
+        for &x in &[
+            1.0_f64,
+            1.5,
+            2.0,
+            3.0,
+            1e-9,
+            0.3,
+            1e9,
+            12345.678,
+            1.0 + 1e-12,
+        ] {
             let raw = (x * 4_294_967_296.0) as u128;
             let want = libm::log(raw as f64 / 4_294_967_296.0);
             let got = to_f64(ln(raw, 32));
-            assert!((got - want).abs() < 1e-14 * want.abs().max(1.0), "ln({x}) = {got}, want {want}");
+            assert!(
+                (got - want).abs() < 1e-14 * want.abs().max(1.0),
+                "ln({x}) = {got}, want {want}"
+            );
         }
         assert_eq!(ln(1 << 64, 64), 0);
         assert_eq!(ln(0, 64), i128::MIN);
@@ -124,14 +141,30 @@ mod tests {
             let got = exp(q) as f64 / 4_611_686_018_427_387_904.0;
             let want = libm::exp(v);
             // Q62 output: relative 1e-14 for e^v ≥ 1, absolute 2^-60 below.
-            let err = if v >= 0.0 { (got / want - 1.0).abs() } else { (got - want).abs() * 1e-4 };
+            let err = if v >= 0.0 {
+                (got / want - 1.0).abs()
+            } else {
+                (got - want).abs() * 1e-4
+            };
             assert!(err < 1e-14, "exp({v}) = {got}, want {want}");
         }
     }
 
     #[test]
     fn isqrt_is_floor() {
-        for x in [0u128, 1, 2, 3, 4, 15, 16, 17, 1 << 100, (1 << 100) + 12345, u128::MAX] {
+        for x in [
+            0u128,
+            1,
+            2,
+            3,
+            4,
+            15,
+            16,
+            17,
+            1 << 100,
+            (1 << 100) + 12345,
+            u128::MAX,
+        ] {
             let r = isqrt(x);
             assert!(r * r <= x);
             assert!((r + 1).checked_mul(r + 1).is_none_or(|s| s > x));

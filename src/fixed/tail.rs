@@ -60,11 +60,19 @@ pub(crate) struct Tails {
 impl Tails {
     /// ln P(a, μ) in Q64.
     pub(crate) fn ln_lower(&self) -> i128 {
-        if self.small_is_upper { ln_one_minus(self.ln_small) } else { self.ln_small }
+        if self.small_is_upper {
+            ln_one_minus(self.ln_small)
+        } else {
+            self.ln_small
+        }
     }
     /// ln Q(a, μ) in Q64.
     pub(crate) fn ln_upper(&self) -> i128 {
-        if self.small_is_upper { self.ln_small } else { ln_one_minus(self.ln_small) }
+        if self.small_is_upper {
+            self.ln_small
+        } else {
+            ln_one_minus(self.ln_small)
+        }
     }
 }
 
@@ -183,7 +191,10 @@ fn temme(a: u64, mu: u64, dev: i128) -> Tails {
     let y = isqrt(dev as u128); // Q32
     let half = erfcx_62(y) / 2;
     let bracket = if upper_small { half + r } else { half - r };
-    Tails { ln_small: -dev + ln(bracket.max(1) as u128, 62), small_is_upper: upper_small }
+    Tails {
+        ln_small: -dev + ln(bracket.max(1) as u128, 62),
+        small_is_upper: upper_small,
+    }
 }
 
 /// Both tails at integer shape a ≥ 1 and mean μ > 0 (UQ32.32).
@@ -194,14 +205,26 @@ pub(crate) fn tails(a: u64, mu: u64) -> Tails {
             return temme(a, mu, dev);
         }
         if (mu as i128) < ((a as i128) << 32) {
-            return Tails { ln_small: lower_series(a, mu), small_is_upper: false };
+            return Tails {
+                ln_small: lower_series(a, mu),
+                small_is_upper: false,
+            };
         }
-        return Tails { ln_small: upper_sum(a, mu), small_is_upper: true };
+        return Tails {
+            ln_small: upper_sum(a, mu),
+            small_is_upper: true,
+        };
     }
     if (mu as i128) < ((a as i128 + 1) << 32) {
-        Tails { ln_small: lower_series(a, mu), small_is_upper: false }
+        Tails {
+            ln_small: lower_series(a, mu),
+            small_is_upper: false,
+        }
     } else {
-        Tails { ln_small: upper_sum(a, mu), small_is_upper: true }
+        Tails {
+            ln_small: upper_sum(a, mu),
+            small_is_upper: true,
+        }
     }
 }
 
@@ -223,28 +246,54 @@ mod tests {
 
     #[test]
     fn bd0_matches_float_tier() {
-        for &(a, mu) in &[(10u64, 9.5_f64), (100, 3.25), (1_000_000, 1_000_500.0), (5, 1e-9), (25, 80.0)] {
+        for &(a, mu) in &[
+            (10u64, 9.5_f64),
+            (100, 3.25),
+            (1_000_000, 1_000_500.0),
+            (5, 1e-9),
+            (25, 80.0),
+        ] {
             let raw = (mu * 4_294_967_296.0) as u64;
             let m = raw as f64 / 4_294_967_296.0;
             let want = crate::math::loader::bd0(a as f64, m);
             let got = q64_to_f64(bd0(a, raw));
-            assert!((got - want).abs() < 1e-12 * want.max(1.0), "bd0({a}, {mu}) = {got}, want {want}");
+            assert!(
+                (got - want).abs() < 1e-12 * want.max(1.0),
+                "bd0({a}, {mu}) = {got}, want {want}"
+            );
         }
     }
 
     #[test]
     fn tails_match_float_tier() {
-        for &(a, mu) in &[(1u64, 0.5_f64), (5, 1.0), (30, 10.0), (24, 24.5), (25, 25.0), (150, 100.0),
-            (10500, 1e4), (10_015_811, 1e7), (11, 1000.0), (3, 1e-6), (1000, 10.0), (60, 200.0)]
-        {
+        for &(a, mu) in &[
+            (1u64, 0.5_f64),
+            (5, 1.0),
+            (30, 10.0),
+            (24, 24.5),
+            (25, 25.0),
+            (150, 100.0),
+            (10500, 1e4),
+            (10_015_811, 1e7),
+            (11, 1000.0),
+            (3, 1e-6),
+            (1000, 10.0),
+            (60, 200.0),
+        ] {
             let raw = (mu * 4_294_967_296.0) as u64;
             let m = raw as f64 / 4_294_967_296.0;
             let t = tails(a, raw);
             let want_p = crate::math::ln_gamma_p(a as f64, m).unwrap();
             let want_q = crate::math::ln_gamma_q(a as f64, m).unwrap();
             let (gp, gq) = (q64_to_f64(t.ln_lower()), q64_to_f64(t.ln_upper()));
-            assert!((gp - want_p).abs() < 1e-9 * want_p.abs().max(1.0), "ln P({a}, {mu}) = {gp}, want {want_p}");
-            assert!((gq - want_q).abs() < 1e-9 * want_q.abs().max(1.0), "ln Q({a}, {mu}) = {gq}, want {want_q}");
+            assert!(
+                (gp - want_p).abs() < 1e-9 * want_p.abs().max(1.0),
+                "ln P({a}, {mu}) = {gp}, want {want_p}"
+            );
+            assert!(
+                (gq - want_q).abs() < 1e-9 * want_q.abs().max(1.0),
+                "ln Q({a}, {mu}) = {gq}, want {want_q}"
+            );
         }
     }
 }

@@ -17,7 +17,11 @@ const FRAC_1_SQRT_PI: f64 = 0.564_189_583_547_756_3;
 /// Accuracy: a few ulp of the type, plus the rounding of `y²` (relative
 /// `2 ε y²` near the switch point, 1.5e-13 in f64 at y = 26).
 pub(crate) fn erfcx<F: Real>(y: F) -> F {
-    if y < F::ERFCX_FRACTION_FROM { by_product(y) } else { by_fraction(y) }
+    if y < F::ERFCX_FRACTION_FROM {
+        by_product(y)
+    } else {
+        by_fraction(y)
+    }
 }
 
 fn by_product<F: Real>(y: F) -> F {

@@ -42,29 +42,51 @@ const _: () = assert!(<f32 as Real>::TEMME_TERMS <= TERMS && <f32 as Real>::TEMM
 pub(crate) struct GammaTails<F> {
     /// ln of the smaller of P and Q (either one near 1/2).
     ln_small: F,
+    /// The smaller one itself where it was formed directly; negative if not.
+    small: F,
     /// Whether the smaller one is Q (upper) rather than P (lower).
     small_is_upper: bool,
 }
 
 impl<F: Real> GammaTails<F> {
     fn small(&self) -> F {
-        self.ln_small.exp()
+        if self.small >= F::ZERO {
+            self.small
+        } else {
+            self.ln_small.exp()
+        }
     }
     /// P(a, x).
     pub(crate) fn lower(&self) -> F {
-        if self.small_is_upper { F::ONE - self.small() } else { self.small() }
+        if self.small_is_upper {
+            F::ONE - self.small()
+        } else {
+            self.small()
+        }
     }
     /// Q(a, x).
     pub(crate) fn upper(&self) -> F {
-        if self.small_is_upper { self.small() } else { F::ONE - self.small() }
+        if self.small_is_upper {
+            self.small()
+        } else {
+            F::ONE - self.small()
+        }
     }
     /// ln P(a, x).
     pub(crate) fn ln_lower(&self) -> F {
-        if self.small_is_upper { (-self.small()).ln_1p() } else { self.ln_small }
+        if self.small_is_upper {
+            (-self.small()).ln_1p()
+        } else {
+            self.ln_small
+        }
     }
     /// ln Q(a, x).
     pub(crate) fn ln_upper(&self) -> F {
-        if self.small_is_upper { self.ln_small } else { (-self.small()).ln_1p() }
+        if self.small_is_upper {
+            self.ln_small
+        } else {
+            (-self.small()).ln_1p()
+        }
     }
 }
 
@@ -88,10 +110,18 @@ pub(crate) fn check_shape_arg<F: Real>(a: F, x: F) -> Result<(), Error> {
 /// P and Q at (a, x); the caller has validated a > 0 and x ≥ 0.
 pub(crate) fn tails<F: Real>(a: F, x: F) -> Result<GammaTails<F>, Error> {
     if x == F::ZERO {
-        return Ok(GammaTails { ln_small: -F::INFINITY, small_is_upper: false });
+        return Ok(GammaTails {
+            ln_small: -F::INFINITY,
+            small: F::ZERO,
+            small_is_upper: false,
+        });
     }
     if !x.is_finite() {
-        return Ok(GammaTails { ln_small: -F::INFINITY, small_is_upper: true });
+        return Ok(GammaTails {
+            ln_small: -F::INFINITY,
+            small: F::ZERO,
+            small_is_upper: true,
+        });
     }
     if a >= F::of(TEMME_MIN_SHAPE) {
         let dev = bd0(a, x);
@@ -99,14 +129,101 @@ pub(crate) fn tails<F: Real>(a: F, x: F) -> Result<GammaTails<F>, Error> {
         if eta <= F::of(TEMME_MAX_ETA) {
             return Ok(temme(a, x, dev, eta));
         }
-        return if x < a { lower_series(a, x) } else { upper_fraction(a, x) };
+        return if x < a {
+            lower_series(a, x)
+        } else {
+            upper_fraction(a, x)
+        };
     }
-    if x < a + F::ONE { lower_series(a, x) } else { upper_fraction(a, x) }
+    if x < a + F::ONE {
+        lower_series(a, x)
+    } else {
+        upper_fraction(a, x)
+    }
 }
 
 /// Builds the result from ln(small).
 fn from_ln<F: Real>(ln_small: F, small_is_upper: bool) -> GammaTails<F> {
-    GammaTails { ln_small, small_is_upper }
+    GammaTails {
+        ln_small,
+        small: -F::ONE,
+        small_is_upper,
+    }
+}
+
+/// A positive number as m·2^e, kept in range by exact power-of-two rescaling.
+#[derive(Clone, Copy)]
+struct Scaled<F> {
+    m: F,
+    e: i32,
+}
+
+impl<F: Real> Scaled<F> {
+    const STEP: i32 = 50;
+    fn mul(mut self, f: F) -> Self {
+        self.m *= f;
+        let big = F::of(1.125_899_906_842_624e15); // 2^50
+        if self.m > big {
+            self.m /= big;
+            self.e += Self::STEP;
+        } else if self.m < F::ONE / big {
+            self.m *= big;
+            self.e -= Self::STEP;
+        }
+        self
+    }
+    fn ln(self) -> F {
+        let e = F::of_u32(self.e.unsigned_abs()) * F::of(core::f64::consts::LN_2);
+        self.m.ln() + if self.e < 0 { -e } else { e }
+    }
+    /// The value, or a negative number if it is below the normal range.
+    fn value(self) -> F {
+        let mut v = self.m;
+        let mut e = self.e;
+        let half = F::of(8.881_784_197_001_252e-16); // 2^-50
+        while e <= -Self::STEP {
+            v *= half;
+            e += Self::STEP;
+        }
+        while e >= Self::STEP {
+            v /= half;
+            e -= Self::STEP;
+        }
+        // 2^e for |e| < 50 by binary powering.
+        let mut base = if e < 0 { F::HALF } else { F::TWO };
+        let mut k = e.unsigned_abs();
+        while k > 0 {
+            if k & 1 == 1 {
+                v *= base;
+            }
+            base *= base;
+            k >>= 1;
+        }
+        if v < F::MIN_POSITIVE { -F::ONE } else { v }
+    }
+}
+
+/// x^a e^{-x}/Γ(a+1) = e^{-x} Π_{j=1..a} x/j for an integer shape a ≤
+/// `F::PRODUCT_MAX_SHAPE` and 0 < x ≤ 400, or `None`. Every factor is formed
+/// from exact inputs, so the relative error is about a ulp per factor instead
+/// of |ln D| ulp.
+fn prefactor_product<F: Real>(a: F, x: F) -> Option<Scaled<F>> {
+    let n = a.to_u32_saturating();
+    if n == 0 || n > F::PRODUCT_MAX_SHAPE || F::of_u32(n) != a || !(x <= F::of(400.0)) {
+        return None;
+    }
+    let fifty = F::of(50.0);
+    let mut r = x;
+    let mut s = Scaled { m: F::ONE, e: 0 };
+    while r > fifty {
+        s = s.mul(F::of(1.928_749_847_963_917_8e-22)); // e^-50
+        r -= fifty;
+    }
+    s = s.mul((-r).exp());
+    for j in 1..=n {
+        s = s.mul(x / F::of_u32(j));
+    }
+    Some(s)
 }
 
 /// P(a, x) = D · Σ_j x^j / ((a+1)…(a+j)), D = x^a e^{-x} / Γ(a+1).
@@ -119,6 +236,14 @@ fn lower_series<F: Real>(a: F, x: F) -> Result<GammaTails<F>, Error> {
         term *= x / denom;
         sum += term;
         if term <= sum * F::EPSILON * F::HALF {
+            if let Some(d) = prefactor_product(a, x) {
+                let d = d.mul(sum);
+                return Ok(GammaTails {
+                    ln_small: d.ln(),
+                    small: d.value(),
+                    small_is_upper: false,
+                });
+            }
             return Ok(from_ln(ln_prefactor(a, x) + sum.ln(), false));
         }
     }
@@ -149,6 +274,14 @@ fn upper_fraction<F: Real>(a: F, x: F) -> Result<GammaTails<F>, Error> {
         let delta = d * c;
         h *= delta;
         if (delta - F::ONE).abs() <= F::EPSILON {
+            if let Some(d) = prefactor_product(a, x) {
+                let d = d.mul(a * h);
+                return Ok(GammaTails {
+                    ln_small: d.ln(),
+                    small: d.value(),
+                    small_is_upper: true,
+                });
+            }
             let ln_q = a.ln() + ln_prefactor(a, x) + h.ln();
             return Ok(from_ln(ln_q, true));
         }
@@ -179,7 +312,11 @@ fn temme<F: Real>(a: F, x: F, dev: F, eta_abs: F) -> GammaTails<F> {
     let r = sum / (F::TWO * F::of(core::f64::consts::PI) * a).sqrt();
     let y = dev.sqrt();
     let half_erfcx = F::HALF * erfcx(y);
-    let bracket = if upper_is_small { half_erfcx + r } else { half_erfcx - r };
+    let bracket = if upper_is_small {
+        half_erfcx + r
+    } else {
+        half_erfcx - r
+    };
     from_ln(-dev + bracket.ln(), upper_is_small)
 }
 

@@ -39,8 +39,16 @@ fn invert<F: Real>(a: F, p: F, lower: bool) -> Result<F, Error> {
         return Ok(if lower { -(-p).ln_1p() } else { -p.ln() });
     }
     // Solve on the smaller side: target tail t = min(p, 1-p) of side `upper_side`.
-    let (upper_side, target) = if p <= F::HALF { (!lower, p) } else { (lower, F::ONE - p) };
-    let ln_target = if p <= F::HALF { target.ln() } else { (-p).ln_1p() };
+    let (upper_side, target) = if p <= F::HALF {
+        (!lower, p)
+    } else {
+        (lower, F::ONE - p)
+    };
+    let ln_target = if p <= F::HALF {
+        target.ln()
+    } else {
+        (-p).ln_1p()
+    };
 
     let mut x = start(a, target, upper_side);
     let mut lo = F::ZERO;
@@ -48,7 +56,11 @@ fn invert<F: Real>(a: F, p: F, lower: bool) -> Result<F, Error> {
     for _ in 0..MAX_STEPS {
         check_shape_arg(a, x)?;
         let t = tails(a, x)?;
-        let ln_t = if upper_side { t.ln_upper() } else { t.ln_lower() };
+        let ln_t = if upper_side {
+            t.ln_upper()
+        } else {
+            t.ln_lower()
+        };
         let g = ln_t - ln_target;
         // Tail increasing in x (lower side) or decreasing (upper side).
         let too_far = if upper_side { g < F::ZERO } else { g > F::ZERO };

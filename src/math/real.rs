@@ -55,6 +55,10 @@ pub trait Real:
     const TEMME_DEGREE: usize;
     /// Above this argument `erfcx` uses its continued fraction (below it, `exp(y²) erfc(y)`).
     const ERFCX_FRACTION_FROM: Self;
+    /// Largest integer shape for which the prefactor x^a e^{-x}/Γ(a+1) is formed as a
+    /// product (0: never). Used by `f32`, whose logarithmic form would round the
+    /// exponent of tails near 1e-30 by several ulp.
+    const PRODUCT_MAX_SHAPE: u32;
 
     /// Converts from `f64` (rounding to nearest); used for constants.
     fn of(v: f64) -> Self;
@@ -90,7 +94,7 @@ pub trait Real:
 
 macro_rules! impl_real {
     ($t:ty, $exp:path, $expm1:path, $ln:path, $ln1p:path, $sqrt:path, $floor:path,
-     $erfc:path, $lgamma:path, $terms:expr, $degree:expr, $erfcx_from:expr) => {
+     $erfc:path, $lgamma:path, $terms:expr, $degree:expr, $erfcx_from:expr, $product:expr) => {
         impl Real for $t {
             const ZERO: Self = 0.0;
             const ONE: Self = 1.0;
@@ -103,6 +107,7 @@ macro_rules! impl_real {
             const TEMME_TERMS: usize = $terms;
             const TEMME_DEGREE: usize = $degree;
             const ERFCX_FRACTION_FROM: Self = $erfcx_from;
+            const PRODUCT_MAX_SHAPE: u32 = $product;
 
             #[inline]
             fn of(v: f64) -> Self {
@@ -180,7 +185,8 @@ impl_real!(
     libm::lgamma,
     10,
     31,
-    26.0
+    26.0,
+    0
 );
 impl_real!(
     f32,
@@ -194,5 +200,6 @@ impl_real!(
     libm::lgammaf,
     4,
     16,
-    9.0
+    9.0,
+    150
 );

@@ -1,8 +1,8 @@
 //! Exact (Garwood 1936) confidence limits on a Poisson mean from an observed count.
 
+use crate::Real;
 use crate::error::{Error, Param, check_open_unit};
 use crate::math::{gamma_p_inv, gamma_q_inv};
-use crate::Real;
 
 /// Lower and upper limits on a Poisson mean (in counts; divide by the
 /// counting time for a rate).
@@ -34,7 +34,11 @@ pub struct MeanLimits<F> {
 pub fn exact_limits<F: Real>(counts: u32, level: F) -> Result<MeanLimits<F>, Error> {
     let level = check_open_unit(level, Param::Level)?;
     let tail = (F::ONE - level) * F::HALF;
-    let lower = if counts == 0 { F::ZERO } else { gamma_p_inv(F::of_u32(counts), tail)? };
+    let lower = if counts == 0 {
+        F::ZERO
+    } else {
+        gamma_p_inv(F::of_u32(counts), tail)?
+    };
     let upper = gamma_q_inv(F::of_u32(counts) + F::ONE, tail)?;
     Ok(MeanLimits { lower, upper })
 }

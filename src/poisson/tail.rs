@@ -20,10 +20,16 @@ pub struct Prob<F> {
 
 impl<F: Real> Prob<F> {
     fn certain() -> Self {
-        Prob { p: F::ONE, ln_p: F::ZERO }
+        Prob {
+            p: F::ONE,
+            ln_p: F::ZERO,
+        }
     }
     fn impossible() -> Self {
-        Prob { p: F::ZERO, ln_p: -F::INFINITY }
+        Prob {
+            p: F::ZERO,
+            ln_p: -F::INFINITY,
+        }
     }
 }
 
@@ -57,7 +63,10 @@ pub fn at_least<F: Real>(mean: F, k: u32) -> Result<Prob<F>, Error> {
         return Ok(Prob::impossible());
     }
     let t = tails(F::of_u32(k), mean)?;
-    Ok(Prob { p: t.lower(), ln_p: t.ln_lower() })
+    Ok(Prob {
+        p: t.lower(),
+        ln_p: t.ln_lower(),
+    })
 }
 
 /// P(N ≤ k) for a Poisson count N with mean `mean`.
@@ -76,7 +85,10 @@ pub fn at_most<F: Real>(mean: F, k: u32) -> Result<Prob<F>, Error> {
         return Ok(Prob::certain());
     }
     let t = tails(F::of_u32(k) + F::ONE, mean)?;
-    Ok(Prob { p: t.upper(), ln_p: t.ln_upper() })
+    Ok(Prob {
+        p: t.upper(),
+        ln_p: t.ln_upper(),
+    })
 }
 
 /// P(N = k), the Poisson probability mass function.
@@ -94,7 +106,11 @@ pub fn at_most<F: Real>(mean: F, k: u32) -> Result<Prob<F>, Error> {
 pub fn pmf<F: Real>(mean: F, k: u32) -> Result<Prob<F>, Error> {
     let mean = check_mean(mean)?;
     if mean == F::ZERO {
-        return Ok(if k == 0 { Prob::certain() } else { Prob::impossible() });
+        return Ok(if k == 0 {
+            Prob::certain()
+        } else {
+            Prob::impossible()
+        });
     }
     let ln_p = if k == 0 {
         -mean
@@ -102,7 +118,10 @@ pub fn pmf<F: Real>(mean: F, k: u32) -> Result<Prob<F>, Error> {
         let kf = F::of_u32(k);
         -stirlerr(kf) - bd0(kf, mean) - F::of(LN_SQRT_2PI) - F::HALF * kf.ln()
     };
-    Ok(Prob { p: ln_p.exp(), ln_p })
+    Ok(Prob {
+        p: ln_p.exp(),
+        ln_p,
+    })
 }
 
 /// ln P(N ≥ k) alone (no exponential taken), for searches; mean validated by the caller.

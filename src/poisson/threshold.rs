@@ -14,10 +14,10 @@
 
 use super::check_mean;
 use super::tail::{Prob, at_least, at_most, ln_at_least_unchecked, ln_at_most_unchecked, pmf};
+use crate::Real;
 use crate::error::{Error, Param, check_open_unit};
 use crate::math::normal_upper_quantile_rough;
 use crate::search::{Bracket, bisect, bracket};
-use crate::Real;
 
 /// Brackets narrower than this are finished by the recurrence walk.
 const WALK_WIDTH: i64 = 64;
@@ -42,7 +42,11 @@ pub struct CountThreshold<F> {
 /// μ + √μ (z + (z² - 1)/(6√μ)) with z the normal quantile for α (sign chosen
 /// by the side), and a stride of 2 + √μ/1000 counts.
 fn guess<F: Real>(mean: F, alpha: F, upper: bool) -> (u32, u32) {
-    let small = if alpha <= F::HALF { alpha } else { F::ONE - alpha };
+    let small = if alpha <= F::HALF {
+        alpha
+    } else {
+        F::ONE - alpha
+    };
     let z = normal_upper_quantile_rough(small);
     let z = if (alpha <= F::HALF) == upper { z } else { -z };
     let s = mean.sqrt();
@@ -81,8 +85,15 @@ pub fn alarm_threshold<F: Real>(mean: F, alpha: F) -> Result<CountThreshold<F>, 
     if b.hi > i64::from(u32::MAX) {
         return Err(Error::NoConvergence);
     }
-    let n = if b.hi - b.lo > 1 { walk_down(mean, alpha, b)? } else { b.hi as u32 };
-    Ok(CountThreshold { counts: n, tail: at_least(mean, n)? })
+    let n = if b.hi - b.lo > 1 {
+        walk_down(mean, alpha, b)?
+    } else {
+        b.hi as u32
+    };
+    Ok(CountThreshold {
+        counts: n,
+        tail: at_least(mean, n)?,
+    })
 }
 
 /// From an accepted `hi` (P(N ≥ hi) ≤ α), steps down while P(N ≥ n - 1) ≤ α.
@@ -157,5 +168,8 @@ pub fn fault_threshold<F: Real>(mean: F, alpha: F) -> Result<Option<CountThresho
             Some(n) => n,
         }
     };
-    Ok(Some(CountThreshold { counts: n, tail: at_most(mean, n)? }))
+    Ok(Some(CountThreshold {
+        counts: n,
+        tail: at_most(mean, n)?,
+    }))
 }
