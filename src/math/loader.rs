@@ -5,6 +5,7 @@
 //! Method: C. Loader (2000), "Fast and Accurate Computation of Binomial
 //! Probabilities" (the form used by R's `dpois`).
 
+use super::double_word::Dw;
 use crate::Real;
 
 /// stirlerr(a) at a = i/2 for i = 1..=30, from `tests/reference/gen_stirling.py` (mpmath, 40 digits).
@@ -50,7 +51,7 @@ pub(crate) const LN_SQRT_2PI: f64 = 0.918_938_533_204_672_8;
 /// Table (a ≤ 15, a a multiple of 1/2), the asymptotic series
 /// 1/(12a) - 1/(360a³) + 1/(1260a⁵) - 1/(1680a⁷) + 1/(1188a⁹) (a > 15),
 /// or the definition through ln Γ (other a ≤ 15).
-pub(crate) fn stirlerr<F: Real>(a: F) -> F {
+pub fn stirlerr<F: Real>(a: F) -> F {
     if a > F::of(15.0) {
         let r = F::ONE / a;
         let r2 = r * r;
@@ -79,9 +80,19 @@ pub(crate) fn stirlerr<F: Real>(a: F) -> F {
 /// (Loader switches at 0.1; the series converges like v², so 0.6 costs at
 /// most about 35 terms in f64 and keeps f32 accurate across the whole Temme
 /// region, 0.3 ≤ x/a ≤ 2.36, where the direct form loses a digit.)
-pub(crate) fn bd0<F: Real>(a: F, x: F) -> F {
+pub fn bd0<F: Real>(a: F, x: F) -> F {
+    bd0_dw(a, x).value()
+}
+
+/// [`bd0`] as a double word; for types with `COMPENSATED_DEVIANCE` (f32) the
+/// series is summed in double-word arithmetic, so the result carries about
+/// twice the type's precision (an f32 exponent near 60 to about 1e-9).
+pub(crate) fn bd0_dw<F: Real>(a: F, x: F) -> Dw<F> {
     let d = a - x;
     if d.abs() < F::of(0.6) * (a + x) {
+        if F::COMPENSATED_DEVIANCE {
+            return bd0_series_dw(a, x);
+        }
         let v = d / (a + x);
         let v2 = v * v;
         let mut s = d * v;
@@ -97,10 +108,32 @@ pub(crate) fn bd0<F: Real>(a: F, x: F) -> F {
             }
             s = next;
         }
-        s
+        Dw::of(s)
     } else {
-        a * (a / x).ln() + x - a
+        Dw::of(a * (a / x).ln() + x - a)
     }
+}
+
+/// The series of [`bd0`] in double-word arithmetic.
+fn bd0_series_dw<F: Real>(a: F, x: F) -> Dw<F> {
+    let d = Dw::two_sum(a, -x);
+    let s = Dw::two_sum(a, x);
+    let v = d.div(s);
+    let v2 = v.mul(v);
+    let mut sum = d.mul(v);
+    let mut ej = Dw::of(a + a).mul(v);
+    let mut j = F::ONE;
+    for _ in 0..80 {
+        ej = ej.mul(v2);
+        j += F::TWO;
+        let term = ej.div(Dw::of(j));
+        let next = sum.add(term);
+        if term.hi.abs() <= next.hi.abs() * F::EPSILON * F::EPSILON {
+            return next;
+        }
+        sum = next;
+    }
+    sum
 }
 
 /// `ln(x^a e^{-x} / Γ(a+1))` for a > 0, x > 0, as `-stirlerr(a) - bd0(a, x) - ln √(2πa)`.

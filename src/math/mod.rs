@@ -4,11 +4,12 @@
 //! All are generic over [`Real`] (`f32`, `f64`); the integer-only
 //! counterparts the MCU tier needs live in [`crate::fixed`].
 
+mod double_word;
 mod erfcx;
 mod igamma;
 mod igamma_inv;
 mod lambert_w;
-pub(crate) mod loader;
+pub mod loader;
 mod real;
 pub(crate) mod temme_table;
 

@@ -59,6 +59,11 @@ pub trait Real:
     /// product (0: never). Used by `f32`, whose logarithmic form would round the
     /// exponent of tails near 1e-30 by several ulp.
     const PRODUCT_MAX_SHAPE: u32;
+    /// Whether Loader's deviance is summed in double-word (compensated)
+    /// arithmetic: `f32`, where a plain sum loses several ulp of an exponent near 60.
+    const COMPENSATED_DEVIANCE: bool;
+    /// Veltkamp's splitting constant 2^⌈p/2⌉ + 1 for this precision.
+    const SPLITTER: Self;
 
     /// Converts from `f64` (rounding to nearest); used for constants.
     fn of(v: f64) -> Self;
@@ -94,7 +99,8 @@ pub trait Real:
 
 macro_rules! impl_real {
     ($t:ty, $exp:path, $expm1:path, $ln:path, $ln1p:path, $sqrt:path, $floor:path,
-     $erfc:path, $lgamma:path, $terms:expr, $degree:expr, $erfcx_from:expr, $product:expr) => {
+     $erfc:path, $lgamma:path, $terms:expr, $degree:expr, $erfcx_from:expr, $product:expr,
+     $compensated:expr, $splitter:expr) => {
         impl Real for $t {
             const ZERO: Self = 0.0;
             const ONE: Self = 1.0;
@@ -108,6 +114,8 @@ macro_rules! impl_real {
             const TEMME_DEGREE: usize = $degree;
             const ERFCX_FRACTION_FROM: Self = $erfcx_from;
             const PRODUCT_MAX_SHAPE: u32 = $product;
+            const COMPENSATED_DEVIANCE: bool = $compensated;
+            const SPLITTER: Self = $splitter;
 
             #[inline]
             fn of(v: f64) -> Self {
@@ -186,7 +194,9 @@ impl_real!(
     10,
     31,
     26.0,
-    0
+    0,
+    false,
+    134_217_729.0
 );
 impl_real!(
     f32,
@@ -201,5 +211,7 @@ impl_real!(
     4,
     16,
     9.0,
-    150
+    150,
+    true,
+    4097.0
 );

@@ -1,7 +1,7 @@
 //! P(N ≥ k), P(N ≤ k) and the pmf, each with its natural logarithm.
 
 use super::check_mean;
-use crate::math::loader::{LN_SQRT_2PI, bd0, stirlerr};
+use crate::math::loader::{LN_SQRT_2PI, bd0_dw, stirlerr};
 use crate::math::tails;
 use crate::{Error, Real};
 
@@ -112,16 +112,20 @@ pub fn pmf<F: Real>(mean: F, k: u32) -> Result<Prob<F>, Error> {
             Prob::impossible()
         });
     }
-    let ln_p = if k == 0 {
-        -mean
-    } else {
-        let kf = F::of_u32(k);
-        -stirlerr(kf) - bd0(kf, mean) - F::of(LN_SQRT_2PI) - F::HALF * kf.ln()
-    };
-    Ok(Prob {
-        p: ln_p.exp(),
-        ln_p,
-    })
+    if k == 0 {
+        return Ok(Prob {
+            p: (-mean).exp(),
+            ln_p: -mean,
+        });
+    }
+    let kf = F::of_u32(k);
+    let dev = bd0_dw(kf, mean);
+    let rest = stirlerr(kf) + F::of(LN_SQRT_2PI) + F::HALF * kf.ln();
+    let ln_p = -dev.hi - (dev.lo + rest);
+    // The linear value from the exactly known hi part of the deviance, so it
+    // does not inherit the rounding of ln_p.
+    let p = (-dev.hi).exp() * (-(dev.lo + rest)).exp();
+    Ok(Prob { p, ln_p })
 }
 
 /// ln P(N ≥ k) alone (no exponential taken), for searches; mean validated by the caller.

@@ -17,7 +17,7 @@ use super::tail::{Prob, at_least, at_most, ln_at_least_unchecked, ln_at_most_unc
 use crate::Real;
 use crate::error::{Error, Param, check_open_unit};
 use crate::math::normal_upper_quantile_rough;
-use crate::search::{Bracket, bisect, bracket};
+use crate::search::{bisect, bracket};
 
 /// Brackets narrower than this are finished by the recurrence walk.
 const WALK_WIDTH: i64 = 64;
@@ -25,6 +25,12 @@ const WALK_WIDTH: i64 = 64;
 /// Whether linear probabilities near α stay well inside the normal range.
 fn walkable<F: Real>(ln_alpha: F) -> bool {
     ln_alpha > F::MIN_POSITIVE.ln() + F::of(60.0)
+}
+
+/// Whether a walk may start from a tail with this logarithm: within e^40 of
+/// α, so that it and the pmf terms added to it are normal numbers.
+fn near<F: Real>(ln_tail: F, ln_alpha: F) -> bool {
+    ln_tail >= ln_alpha - F::of(40.0)
 }
 
 /// A count threshold with the tail probability it achieves.
@@ -77,57 +83,107 @@ pub fn alarm_threshold<F: Real>(mean: F, alpha: F) -> Result<CountThreshold<F>, 
     let alpha = check_open_unit(alpha, Param::Alpha)?;
     let ln_alpha = alpha.ln();
     let (g, stride) = guess(mean, alpha, true);
-    let mut accept = |n| Ok::<bool, Error>(ln_at_least_unchecked(mean, n)? <= ln_alpha);
-    let b = bracket(1, u32::MAX, g.saturating_add(1), stride, &mut accept)?;
+    let start = g.saturating_add(1);
     let walk = walkable(ln_alpha);
+    if walk {
+        // Usually the start is accepted and within a few counts of the answer.
+        let t = at_least(mean, start)?;
+        if t.ln_p <= ln_alpha && near(t.ln_p, ln_alpha) {
+            // Count 0 is always rejected (P(N ≥ 0) = 1), so a walk to 1 is complete.
+            let floor = (i64::from(start) - WALK_WIDTH - 1).max(0);
+            let w = walk_down(mean, alpha, start, t.p, floor)?;
+            if w.crossed || floor == 0 {
+                return Ok(w.found);
+            }
+        }
+    }
+    let mut accept = |n| Ok::<bool, Error>(ln_at_least_unchecked(mean, n)? <= ln_alpha);
+    let b = bracket(1, u32::MAX, start, stride, &mut accept)?;
     let b = bisect(b, if walk { WALK_WIDTH } else { 1 }, &mut accept)?;
     // P(N ≥ u32::MAX) ≤ α for every admitted mean, so hi is in range.
     if b.hi > i64::from(u32::MAX) {
         return Err(Error::NoConvergence);
     }
-    let n = if b.hi - b.lo > 1 {
-        walk_down(mean, alpha, b)?
-    } else {
-        b.hi as u32
-    };
+    let hi = b.hi as u32;
+    if walk && b.hi - b.lo > 1 {
+        let t = at_least(mean, hi)?;
+        if near(t.ln_p, ln_alpha) {
+            // lo is rejected, so the walk ends at the answer either way.
+            return Ok(walk_down(mean, alpha, hi, t.p, b.lo)?.found);
+        }
+    }
+    let b = bisect(b, 1, &mut accept)?;
+    let hi = b.hi as u32;
     Ok(CountThreshold {
-        counts: n,
-        tail: at_least(mean, n)?,
+        counts: hi,
+        tail: at_least(mean, hi)?,
     })
 }
 
-/// From an accepted `hi` (P(N ≥ hi) ≤ α), steps down while P(N ≥ n - 1) ≤ α.
-fn walk_down<F: Real>(mean: F, alpha: F, b: Bracket) -> Result<u32, Error> {
-    let mut n = b.hi as u32;
-    let mut tail = at_least(mean, n)?.p;
+/// A walk's end: the last accepted count with its tail, and whether the next
+/// step was seen to be rejected (false: the walk hit its bound first).
+struct WalkEnd<F> {
+    found: CountThreshold<F>,
+    crossed: bool,
+}
+
+fn end<F: Real>(n: u32, tail: F, crossed: bool) -> WalkEnd<F> {
+    WalkEnd {
+        found: CountThreshold {
+            counts: n,
+            tail: Prob {
+                p: tail,
+                ln_p: tail.ln(),
+            },
+        },
+        crossed,
+    }
+}
+
+/// From an accepted `hi` (P(N ≥ hi) = `tail` ≤ α) steps down while
+/// P(N ≥ n - 1) ≤ α, but not below `floor + 1`.
+fn walk_down<F: Real>(
+    mean: F,
+    alpha: F,
+    hi: u32,
+    mut tail: F,
+    floor: i64,
+) -> Result<WalkEnd<F>, Error> {
+    let mut n = hi;
     let mut p = pmf(mean, n)?.p;
-    while i64::from(n) - 1 > b.lo {
+    while i64::from(n) - 1 > floor {
         p = p * F::of_u32(n) / mean;
         let wider = tail + p;
         if wider > alpha {
-            break;
+            return Ok(end(n, tail, true));
         }
         tail = wider;
         n -= 1;
     }
-    Ok(n)
+    Ok(end(n, tail, false))
 }
 
-/// From a rejected `lo` (P(N ≤ lo) ≤ α), steps up while P(N ≤ n + 1) ≤ α.
-fn walk_up<F: Real>(mean: F, alpha: F, b: Bracket) -> Result<u32, Error> {
-    let mut n = b.lo as u32;
-    let mut tail = at_most(mean, n)?.p;
+/// From an accepted `lo` (P(N ≤ lo) = `tail` ≤ α) steps up while
+/// P(N ≤ n + 1) ≤ α, but not above `ceiling - 1`.
+fn walk_up<F: Real>(
+    mean: F,
+    alpha: F,
+    lo: u32,
+    mut tail: F,
+    ceiling: i64,
+) -> Result<WalkEnd<F>, Error> {
+    let mut n = lo;
     let mut p = pmf(mean, n)?.p;
-    while i64::from(n) + 1 < b.hi {
+    while i64::from(n) + 1 < ceiling {
         p = p * mean / F::of_u32(n + 1);
         let wider = tail + p;
         if wider > alpha {
-            break;
+            return Ok(end(n, tail, true));
         }
         tail = wider;
         n += 1;
     }
-    Ok(n)
+    Ok(end(n, tail, false))
 }
 
 /// The fault threshold: the largest n with P(N ≤ n) ≤ α (fault when the
@@ -150,26 +206,42 @@ pub fn fault_threshold<F: Real>(mean: F, alpha: F) -> Result<Option<CountThresho
     let mean = check_mean(mean)?;
     let alpha = check_open_unit(alpha, Param::Alpha)?;
     let ln_alpha = alpha.ln();
+    // No fault threshold at all when P(N = 0) = e^{-μ} > α.
+    if -mean > ln_alpha {
+        return Ok(None);
+    }
     let (g, stride) = guess(mean, alpha, false);
+    let walk = walkable(ln_alpha);
+    if walk {
+        let t = at_most(mean, g)?;
+        if t.ln_p <= ln_alpha && near(t.ln_p, ln_alpha) {
+            let w = walk_up(mean, alpha, g, t.p, i64::from(g) + WALK_WIDTH + 1)?;
+            if w.crossed {
+                return Ok(Some(w.found));
+            }
+        }
+    }
     // First n whose lower tail exceeds α; the threshold is the count before it.
     let mut accept = |n| Ok::<bool, Error>(ln_at_most_unchecked(mean, n)? > ln_alpha);
     let b = bracket(0, u32::MAX, g, stride, &mut accept)?;
-    let walk = walkable(ln_alpha);
     let b = bisect(b, if walk { WALK_WIDTH } else { 1 }, &mut accept)?;
     if b.hi > i64::from(u32::MAX) {
         return Err(Error::NoConvergence);
     }
-    let n = if b.hi - b.lo > 1 && b.lo >= 0 {
-        walk_up(mean, alpha, b)?
-    } else {
-        let b = bisect(b, 1, &mut accept)?;
-        match (b.hi as u32).checked_sub(1) {
-            None => return Ok(None),
-            Some(n) => n,
+    if walk && b.hi - b.lo > 1 && b.lo >= 0 {
+        let lo = b.lo as u32;
+        let t = at_most(mean, lo)?;
+        if near(t.ln_p, ln_alpha) {
+            // hi is accepted (its tail is over α), so the walk ends at the answer.
+            return Ok(Some(walk_up(mean, alpha, lo, t.p, b.hi)?.found));
         }
-    };
-    Ok(Some(CountThreshold {
-        counts: n,
-        tail: at_most(mean, n)?,
-    }))
+    }
+    let b = bisect(b, 1, &mut accept)?;
+    match (b.hi as u32).checked_sub(1) {
+        None => Ok(None),
+        Some(n) => Ok(Some(CountThreshold {
+            counts: n,
+            tail: at_most(mean, n)?,
+        })),
+    }
 }
