@@ -416,3 +416,11 @@ pub fn ln_gamma_q<F: Real>(a: F, x: F) -> Result<F, Error> {
     check_shape_arg(a, x)?;
     Ok(tails(a, x)?.ln_upper())
 }
+
+/// p(k; x) = x^k e^{-x}/k! as (value, ln value) by the exact-factor product,
+/// where the type uses it (f32, k ≤ 150, x ≤ 400) and the value is normal.
+pub(crate) fn pmf_by_product<F: Real>(k: u32, x: F) -> Option<(F, F)> {
+    let d = prefactor_product(F::of_u32(k), x)?;
+    let v = d.value();
+    (v > F::ZERO).then(|| (v, d.ln()))
+}

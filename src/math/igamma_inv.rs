@@ -19,7 +19,12 @@ const MAX_STEPS: u32 = 200;
 /// Abramowitz & Stegun 26.2.23 (|error| < 4.5e-4; coefficients from memory of the
 /// handbook). A starting value only: the Newton iteration does not depend on its accuracy.
 pub(crate) fn normal_upper_quantile_rough<F: Real>(p: F) -> F {
-    let t = (-F::TWO * p.ln()).sqrt();
+    normal_upper_quantile_rough_ln(p.ln())
+}
+
+/// As [`normal_upper_quantile_rough`], from ln p.
+pub(crate) fn normal_upper_quantile_rough_ln<F: Real>(ln_p: F) -> F {
+    let t = (-F::TWO * ln_p).sqrt();
     let num = F::of(2.515517) + t * (F::of(0.802853) + t * F::of(0.010328));
     let den = F::ONE + t * (F::of(1.432788) + t * (F::of(0.189269) + t * F::of(0.001308)));
     t - num / den

@@ -51,7 +51,7 @@ pub(crate) const LN_SQRT_2PI: f64 = 0.918_938_533_204_672_8;
 /// Table (a ≤ 15, a a multiple of 1/2), the asymptotic series
 /// 1/(12a) - 1/(360a³) + 1/(1260a⁵) - 1/(1680a⁷) + 1/(1188a⁹) (a > 15),
 /// or the definition through ln Γ (other a ≤ 15).
-pub fn stirlerr<F: Real>(a: F) -> F {
+pub(crate) fn stirlerr<F: Real>(a: F) -> F {
     if a > F::of(15.0) {
         let r = F::ONE / a;
         let r2 = r * r;
@@ -80,7 +80,7 @@ pub fn stirlerr<F: Real>(a: F) -> F {
 /// (Loader switches at 0.1; the series converges like v², so 0.6 costs at
 /// most about 35 terms in f64 and keeps f32 accurate across the whole Temme
 /// region, 0.3 ≤ x/a ≤ 2.36, where the direct form loses a digit.)
-pub fn bd0<F: Real>(a: F, x: F) -> F {
+pub(crate) fn bd0<F: Real>(a: F, x: F) -> F {
     bd0_dw(a, x).value()
 }
 

@@ -9,13 +9,13 @@ mod erfcx;
 mod igamma;
 mod igamma_inv;
 mod lambert_w;
-pub mod loader;
+pub(crate) mod loader;
 mod real;
 pub(crate) mod temme_table;
 
-pub(crate) use igamma::tails;
 pub use igamma::{gamma_p, gamma_q, ln_gamma_p, ln_gamma_q};
-pub(crate) use igamma_inv::normal_upper_quantile_rough;
+pub(crate) use igamma::{pmf_by_product, tails};
+pub(crate) use igamma_inv::normal_upper_quantile_rough_ln;
 pub use igamma_inv::{gamma_p_inv, gamma_q_inv};
 pub use lambert_w::{lambert_w0, lambert_wm1};
 pub use real::Real;

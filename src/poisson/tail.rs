@@ -2,7 +2,7 @@
 
 use super::check_mean;
 use crate::math::loader::{LN_SQRT_2PI, bd0_dw, stirlerr};
-use crate::math::tails;
+use crate::math::{pmf_by_product, tails};
 use crate::{Error, Real};
 
 /// A probability together with its natural logarithm.
@@ -118,14 +118,96 @@ pub fn pmf<F: Real>(mean: F, k: u32) -> Result<Prob<F>, Error> {
             ln_p: -mean,
         });
     }
+    Ok(pmf_positive(mean, k))
+}
+
+/// p(k; μ) for k ≥ 1, μ > 0.
+pub(crate) fn pmf_positive<F: Real>(mean: F, k: u32) -> Prob<F> {
+    if let Some((p, ln_p)) = pmf_by_product(k, mean) {
+        return Prob { p, ln_p };
+    }
     let kf = F::of_u32(k);
     let dev = bd0_dw(kf, mean);
     let rest = stirlerr(kf) + F::of(LN_SQRT_2PI) + F::HALF * kf.ln();
     let ln_p = -dev.hi - (dev.lo + rest);
     // The linear value from the exactly known hi part of the deviance, so it
     // does not inherit the rounding of ln_p.
-    let p = (-dev.hi).exp() * (-(dev.lo + rest)).exp();
-    Ok(Prob { p, ln_p })
+    let p = if F::COMPENSATED_DEVIANCE {
+        (-dev.hi).exp() * (-(dev.lo + rest)).exp()
+    } else {
+        ln_p.exp()
+    };
+    Prob { p, ln_p }
+}
+
+/// p(k; μ) alone for k ≥ 1, μ > 0 (one exponential, a square root instead of a logarithm).
+pub(crate) fn pmf_linear<F: Real>(mean: F, k: u32) -> F {
+    if F::COMPENSATED_DEVIANCE {
+        return pmf_positive(mean, k).p;
+    }
+    let kf = F::of_u32(k);
+    let e = stirlerr(kf) + bd0_dw(kf, mean).value() + F::of(LN_SQRT_2PI);
+    (-e).exp() / kf.sqrt()
+}
+
+/// For a walk's start: P(N ≥ n) and p(n) in linear form, for μ < n, by the
+/// series P(N ≥ n) = p(n) Σⱼ Πᵢ₌₁..ⱼ μ/(n+i) (positive terms, ratio < 1).
+/// `None` where p(n) is not a normal number or 2μ ≥ n (slow convergence:
+/// the search then uses the O(1) tail routines instead).
+pub(crate) fn upper_tail_and_pmf<F: Real>(mean: F, n: u32) -> Option<(F, F)> {
+    let nf = F::of_u32(n);
+    if n == 0 || !(mean + mean < nf) {
+        return None;
+    }
+    let p = pmf_linear(mean, n);
+    if !(p >= F::MIN_POSITIVE) {
+        return None;
+    }
+    let mut term = F::ONE;
+    let mut sum = F::ONE;
+    let mut den = nf;
+    for _ in 0..4096 {
+        den += F::ONE;
+        term *= mean / den;
+        sum += term;
+        if term <= sum * F::EPSILON * F::HALF {
+            return Some((p * sum, p));
+        }
+    }
+    None
+}
+
+/// For a walk's start: P(N ≤ k) and p(k) in linear form, for k + 1 < μ, by the
+/// finite sum P(N ≤ k) = p(k) Σⱼ Πᵢ₌₀..ⱼ₋₁ (k-i)/μ (positive terms, ratio
+/// below 1/2); `None` where 2k ≥ μ or p(k) is not a normal number.
+pub(crate) fn lower_tail_and_pmf<F: Real>(mean: F, k: u32) -> Option<(F, F)> {
+    let kf = F::of_u32(k);
+    if !(kf + kf < mean) {
+        return None;
+    }
+    let p = if k == 0 {
+        (-mean).exp()
+    } else {
+        pmf_linear(mean, k)
+    };
+    if !(p >= F::MIN_POSITIVE) {
+        return None;
+    }
+    let mut term = F::ONE;
+    let mut sum = F::ONE;
+    let mut i = kf;
+    for _ in 0..4096 {
+        if i < F::ONE {
+            return Some((p * sum, p));
+        }
+        term *= i / mean;
+        sum += term;
+        i -= F::ONE;
+        if term <= sum * F::EPSILON * F::HALF {
+            return Some((p * sum, p));
+        }
+    }
+    None
 }
 
 /// ln P(N ≥ k) alone (no exponential taken), for searches; mean validated by the caller.

@@ -13,10 +13,13 @@
 //! the end in log space instead.
 
 use super::check_mean;
-use super::tail::{Prob, at_least, at_most, ln_at_least_unchecked, ln_at_most_unchecked, pmf};
+use super::tail::{
+    Prob, at_least, at_most, ln_at_least_unchecked, ln_at_most_unchecked, lower_tail_and_pmf, pmf,
+    upper_tail_and_pmf,
+};
 use crate::Real;
 use crate::error::{Error, Param, check_open_unit};
-use crate::math::normal_upper_quantile_rough;
+use crate::math::normal_upper_quantile_rough_ln;
 use crate::search::{bisect, bracket};
 
 /// Brackets narrower than this are finished by the recurrence walk.
@@ -27,10 +30,10 @@ fn walkable<F: Real>(ln_alpha: F) -> bool {
     ln_alpha > F::MIN_POSITIVE.ln() + F::of(60.0)
 }
 
-/// Whether a walk may start from a tail with this logarithm: within e^40 of
-/// α, so that it and the pmf terms added to it are normal numbers.
-fn near<F: Real>(ln_tail: F, ln_alpha: F) -> bool {
-    ln_tail >= ln_alpha - F::of(40.0)
+/// Whether a walk may start from this tail: within e^40 of α, so that it and
+/// the pmf terms added to it are normal numbers.
+fn near<F: Real>(tail: F, alpha: F) -> bool {
+    tail >= alpha * F::of(4.248_354_255_291_589e-18) // e^-40
 }
 
 /// A count threshold with the tail probability it achieves.
@@ -47,13 +50,13 @@ pub struct CountThreshold<F> {
 /// Start value and first stride for the search: the Cornish–Fisher quantile
 /// μ + √μ (z + (z² - 1)/(6√μ)) with z the normal quantile for α (sign chosen
 /// by the side), and a stride of 2 + √μ/1000 counts.
-fn guess<F: Real>(mean: F, alpha: F, upper: bool) -> (u32, u32) {
-    let small = if alpha <= F::HALF {
-        alpha
+fn guess<F: Real>(mean: F, alpha: F, ln_alpha: F, upper: bool) -> (u32, u32) {
+    let ln_small = if alpha <= F::HALF {
+        ln_alpha
     } else {
-        F::ONE - alpha
+        (-alpha).ln_1p()
     };
-    let z = normal_upper_quantile_rough(small);
+    let z = normal_upper_quantile_rough_ln(ln_small);
     let z = if (alpha <= F::HALF) == upper { z } else { -z };
     let s = mean.sqrt();
     let q = mean + s * z + (z * z - F::ONE) / F::of(6.0) + F::HALF;
@@ -82,16 +85,16 @@ pub fn alarm_threshold<F: Real>(mean: F, alpha: F) -> Result<CountThreshold<F>, 
     let mean = check_mean(mean)?;
     let alpha = check_open_unit(alpha, Param::Alpha)?;
     let ln_alpha = alpha.ln();
-    let (g, stride) = guess(mean, alpha, true);
+    let (g, stride) = guess(mean, alpha, ln_alpha, true);
     let start = g.saturating_add(1);
     let walk = walkable(ln_alpha);
     if walk {
         // Usually the start is accepted and within a few counts of the answer.
-        let t = at_least(mean, start)?;
-        if t.ln_p <= ln_alpha && near(t.ln_p, ln_alpha) {
+        let (tail, p) = start_upper(mean, start)?;
+        if tail <= alpha && near(tail, alpha) {
             // Count 0 is always rejected (P(N ≥ 0) = 1), so a walk to 1 is complete.
             let floor = (i64::from(start) - WALK_WIDTH - 1).max(0);
-            let w = walk_down(mean, alpha, start, t.p, floor)?;
+            let w = walk_down(mean, alpha, start, tail, p, floor);
             if w.crossed || floor == 0 {
                 return Ok(w.found);
             }
@@ -106,10 +109,10 @@ pub fn alarm_threshold<F: Real>(mean: F, alpha: F) -> Result<CountThreshold<F>, 
     }
     let hi = b.hi as u32;
     if walk && b.hi - b.lo > 1 {
-        let t = at_least(mean, hi)?;
-        if near(t.ln_p, ln_alpha) {
+        let (tail, p) = start_upper(mean, hi)?;
+        if near(tail, alpha) {
             // lo is rejected, so the walk ends at the answer either way.
-            return Ok(walk_down(mean, alpha, hi, t.p, b.lo)?.found);
+            return Ok(walk_down(mean, alpha, hi, tail, p, b.lo).found);
         }
     }
     let b = bisect(b, 1, &mut accept)?;
@@ -118,6 +121,22 @@ pub fn alarm_threshold<F: Real>(mean: F, alpha: F) -> Result<CountThreshold<F>, 
         counts: hi,
         tail: at_least(mean, hi)?,
     })
+}
+
+/// P(N ≥ n) and p(n) in linear form for a walk's start.
+fn start_upper<F: Real>(mean: F, n: u32) -> Result<(F, F), Error> {
+    match upper_tail_and_pmf(mean, n) {
+        Some(v) => Ok(v),
+        None => Ok((at_least(mean, n)?.p, pmf(mean, n)?.p)),
+    }
+}
+
+/// P(N ≤ k) and p(k) in linear form for a walk's start.
+fn start_lower<F: Real>(mean: F, k: u32) -> Result<(F, F), Error> {
+    match lower_tail_and_pmf(mean, k) {
+        Some(v) => Ok(v),
+        None => Ok((at_most(mean, k)?.p, pmf(mean, k)?.p)),
+    }
 }
 
 /// A walk's end: the last accepted count with its tail, and whether the next
@@ -142,48 +161,34 @@ fn end<F: Real>(n: u32, tail: F, crossed: bool) -> WalkEnd<F> {
 
 /// From an accepted `hi` (P(N ≥ hi) = `tail` ≤ α) steps down while
 /// P(N ≥ n - 1) ≤ α, but not below `floor + 1`.
-fn walk_down<F: Real>(
-    mean: F,
-    alpha: F,
-    hi: u32,
-    mut tail: F,
-    floor: i64,
-) -> Result<WalkEnd<F>, Error> {
+fn walk_down<F: Real>(mean: F, alpha: F, hi: u32, mut tail: F, mut p: F, floor: i64) -> WalkEnd<F> {
     let mut n = hi;
-    let mut p = pmf(mean, n)?.p;
     while i64::from(n) - 1 > floor {
         p = p * F::of_u32(n) / mean;
         let wider = tail + p;
         if wider > alpha {
-            return Ok(end(n, tail, true));
+            return end(n, tail, true);
         }
         tail = wider;
         n -= 1;
     }
-    Ok(end(n, tail, false))
+    end(n, tail, false)
 }
 
 /// From an accepted `lo` (P(N ≤ lo) = `tail` ≤ α) steps up while
 /// P(N ≤ n + 1) ≤ α, but not above `ceiling - 1`.
-fn walk_up<F: Real>(
-    mean: F,
-    alpha: F,
-    lo: u32,
-    mut tail: F,
-    ceiling: i64,
-) -> Result<WalkEnd<F>, Error> {
+fn walk_up<F: Real>(mean: F, alpha: F, lo: u32, mut tail: F, mut p: F, ceiling: i64) -> WalkEnd<F> {
     let mut n = lo;
-    let mut p = pmf(mean, n)?.p;
     while i64::from(n) + 1 < ceiling {
         p = p * mean / F::of_u32(n + 1);
         let wider = tail + p;
         if wider > alpha {
-            return Ok(end(n, tail, true));
+            return end(n, tail, true);
         }
         tail = wider;
         n += 1;
     }
-    Ok(end(n, tail, false))
+    end(n, tail, false)
 }
 
 /// The fault threshold: the largest n with P(N ≤ n) ≤ α (fault when the
@@ -210,12 +215,12 @@ pub fn fault_threshold<F: Real>(mean: F, alpha: F) -> Result<Option<CountThresho
     if -mean > ln_alpha {
         return Ok(None);
     }
-    let (g, stride) = guess(mean, alpha, false);
+    let (g, stride) = guess(mean, alpha, ln_alpha, false);
     let walk = walkable(ln_alpha);
     if walk {
-        let t = at_most(mean, g)?;
-        if t.ln_p <= ln_alpha && near(t.ln_p, ln_alpha) {
-            let w = walk_up(mean, alpha, g, t.p, i64::from(g) + WALK_WIDTH + 1)?;
+        let (tail, p) = start_lower(mean, g)?;
+        if tail <= alpha && near(tail, alpha) {
+            let w = walk_up(mean, alpha, g, tail, p, i64::from(g) + WALK_WIDTH + 1);
             if w.crossed {
                 return Ok(Some(w.found));
             }
@@ -230,10 +235,10 @@ pub fn fault_threshold<F: Real>(mean: F, alpha: F) -> Result<Option<CountThresho
     }
     if walk && b.hi - b.lo > 1 && b.lo >= 0 {
         let lo = b.lo as u32;
-        let t = at_most(mean, lo)?;
-        if near(t.ln_p, ln_alpha) {
+        let (tail, p) = start_lower(mean, lo)?;
+        if near(tail, alpha) {
             // hi is accepted (its tail is over α), so the walk ends at the answer.
-            return Ok(Some(walk_up(mean, alpha, lo, t.p, b.hi)?.found));
+            return Ok(Some(walk_up(mean, alpha, lo, tail, p, b.hi).found));
         }
     }
     let b = bisect(b, 1, &mut accept)?;
