@@ -46,13 +46,16 @@ pub(crate) fn ln(x: u128, frac: u32) -> i128 {
     // s in Q64: (m - 1)/(m + 1).
     let s: u128 = ((m - one_63) << 64) / (m + one_63);
     let s2 = (s * s) >> 64;
-    let mut term = s;
+    // s < 2^64/3 and s² < 2^64/9, so the terms fit a u64; dividing a u64
+    // (not a u128) keeps this cheap on cores without a divider.
+    let mut term = s as u64;
+    let s2 = s2 as u64;
     let mut sum = s;
-    let mut k: u128 = 1;
+    let mut k: u64 = 1;
     while term != 0 {
-        term = (term * s2) >> 64;
+        term = ((u128::from(term) * u128::from(s2)) >> 64) as u64;
         k += 2;
-        sum += term / k;
+        sum += u128::from(term / k);
     }
     e * LN2 + 2 * sum as i128
 }
@@ -66,13 +69,14 @@ pub(crate) fn ln(x: u128, frac: u32) -> i128 {
 pub(crate) fn exp(v: i128) -> u128 {
     let k = v.div_euclid(LN2);
     let r = v.rem_euclid(LN2) >> 2; // Q62, 0 ≤ r < ln 2
-    let r = r as u128;
-    let mut term: u128 = 1 << 62;
-    let mut sum: u128 = term;
-    let mut j: u128 = 1;
+    let r = r as u64;
+    // Terms stay below 2^62, so they are divided as u64 values.
+    let mut term: u64 = 1 << 62;
+    let mut sum: u128 = u128::from(term);
+    let mut j: u64 = 1;
     while term != 0 {
-        term = (term * r >> 62) / j;
-        sum += term;
+        term = ((u128::from(term) * u128::from(r)) >> 62) as u64 / j;
+        sum += u128::from(term);
         j += 1;
     }
     if k >= 65 {
