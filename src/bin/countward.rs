@@ -54,10 +54,10 @@ struct TailArgs {
     #[arg(long, value_name = "M", allow_negative_numbers = true)]
     mean: f64,
     /// Probability of K or more counts.
-    #[arg(long, value_name = "K")]
+    #[arg(long, value_name = "K", allow_negative_numbers = true)]
     at_least: Option<u32>,
     /// Probability of K or fewer counts.
-    #[arg(long, value_name = "K")]
+    #[arg(long, value_name = "K", allow_negative_numbers = true)]
     at_most: Option<u32>,
     /// Arithmetic tier.
     #[arg(long, value_enum, default_value = "f64")]
@@ -89,7 +89,7 @@ struct ThresholdArgs {
 #[derive(Args)]
 struct LimitsArgs {
     /// Observed counts.
-    #[arg(long, value_name = "N")]
+    #[arg(long, value_name = "N", allow_negative_numbers = true)]
     counts: u32,
     /// Confidence level, strictly between 0 and 1 (e.g. 0.95).
     #[arg(long, value_name = "L", allow_negative_numbers = true)]
@@ -111,7 +111,12 @@ struct SilenceArgs {
     #[arg(long, value_name = "A", allow_negative_numbers = true)]
     alpha: f64,
     /// Wait for the K-th event (default 1: any event).
-    #[arg(long, value_name = "K", default_value_t = 1)]
+    #[arg(
+        long,
+        value_name = "K",
+        default_value_t = 1,
+        allow_negative_numbers = true
+    )]
     events: u32,
     /// Print one JSON object.
     #[arg(long)]
