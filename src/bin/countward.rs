@@ -353,10 +353,10 @@ fn silence(a: SilenceArgs) -> Result<(String, Value), Failure> {
 
 /// Flattens a clap error to one line naming what was wrong.
 fn one_line(e: &clap::Error) -> String {
-    if e.kind() == ErrorKind::MissingRequiredArgument {
-        if let Some(ContextValue::Strings(args)) = e.get(ContextKind::InvalidArg) {
-            return format!("error: missing required {}", args.join(", "));
-        }
+    if e.kind() == ErrorKind::MissingRequiredArgument
+        && let Some(ContextValue::Strings(args)) = e.get(ContextKind::InvalidArg)
+    {
+        return format!("error: missing required {}", args.join(", "));
     }
     let rendered = e.render().to_string();
     let first = rendered

@@ -21,7 +21,7 @@ pub(crate) fn erfcx_62(y_q32: u128) -> i128 {
         let mut n: i128 = 0;
         while t != 0 {
             n += 1;
-            t = (t * y2 >> 58) / n;
+            t = ((t * y2) >> 58) / n;
             let term = t / (2 * n + 1);
             sum += if n % 2 == 1 { -term } else { term };
         }

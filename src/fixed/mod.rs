@@ -194,7 +194,7 @@ fn guess(mean: FixedMean, alpha: FixedAlpha, upper: bool) -> (u32, u32) {
     let z = t - (num << 32) / den; // Q32
     let s = q64::isqrt(u128::from(mean.0)) as i128; // √μ in Q16
     let zs = (z * s) >> 16; // Q32
-    let corr = ((z * z >> 32) - one) / 6;
+    let corr = (((z * z) >> 32) - one) / 6;
     let q = (mean.0 as i128) + if upper { zs } else { -zs } + corr + one / 2;
     let n = (q >> 32).clamp(0, u32::MAX as i128) as u32;
     let stride = 2 + (s >> 16) / 1000;

@@ -210,7 +210,7 @@ impl<F: Real> Scaled<F> {
 /// of |ln D| ulp.
 fn prefactor_product<F: Real>(a: F, x: F) -> Option<Scaled<F>> {
     let n = a.to_u32_saturating();
-    if n == 0 || n > F::PRODUCT_MAX_SHAPE || F::of_u32(n) != a || !(x <= F::of(400.0)) {
+    if n == 0 || n > F::PRODUCT_MAX_SHAPE || F::of_u32(n) != a || x.is_nan() || x > F::of(400.0) {
         return None;
     }
     let fifty = F::of(50.0);

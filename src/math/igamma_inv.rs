@@ -109,7 +109,7 @@ fn start<F: Real>(a: F, t: F, upper_side: bool) -> F {
     if !upper_side {
         // Far lower tail: P ≈ x^a / Γ(a+1).
         let small = ((t.ln() + (a + F::ONE).ln_gamma_abs()) / a).exp();
-        if !(wh > F::ZERO) || small < wh * F::HALF {
+        if wh.is_nan() || wh <= F::ZERO || small < wh * F::HALF {
             return small;
         }
         return wh;

@@ -156,11 +156,11 @@ pub(crate) fn pmf_linear<F: Real>(mean: F, k: u32) -> F {
 /// the search then uses the O(1) tail routines instead).
 pub(crate) fn upper_tail_and_pmf<F: Real>(mean: F, n: u32) -> Option<(F, F)> {
     let nf = F::of_u32(n);
-    if n == 0 || !(mean + mean < nf) {
+    if n == 0 || mean.is_nan() || mean + mean >= nf {
         return None;
     }
     let p = pmf_linear(mean, n);
-    if !(p >= F::MIN_POSITIVE) {
+    if p.is_nan() || p < F::MIN_POSITIVE {
         return None;
     }
     let mut term = F::ONE;
@@ -182,7 +182,7 @@ pub(crate) fn upper_tail_and_pmf<F: Real>(mean: F, n: u32) -> Option<(F, F)> {
 /// below 1/2); `None` where 2k ≥ μ or p(k) is not a normal number.
 pub(crate) fn lower_tail_and_pmf<F: Real>(mean: F, k: u32) -> Option<(F, F)> {
     let kf = F::of_u32(k);
-    if !(kf + kf < mean) {
+    if mean.is_nan() || kf + kf >= mean {
         return None;
     }
     let p = if k == 0 {
@@ -190,7 +190,7 @@ pub(crate) fn lower_tail_and_pmf<F: Real>(mean: F, k: u32) -> Option<(F, F)> {
     } else {
         pmf_linear(mean, k)
     };
-    if !(p >= F::MIN_POSITIVE) {
+    if p.is_nan() || p < F::MIN_POSITIVE {
         return None;
     }
     let mut term = F::ONE;

@@ -65,11 +65,15 @@ fn main() -> ! {
     } else {
         debug::EXIT_FAILURE
     });
-    loop {}
+    loop {
+        cortex_m::asm::wfi();
+    }
 }
 
 #[panic_handler]
 fn panic(_: &PanicInfo) -> ! {
     debug::exit(debug::EXIT_FAILURE);
-    loop {}
+    loop {
+        cortex_m::asm::wfi();
+    }
 }

@@ -87,11 +87,15 @@ fn main() -> ! {
         hprintln!("integer tier on Cortex-M0: {} cases disagree", failures);
         debug::exit(debug::EXIT_FAILURE);
     }
-    loop {}
+    loop {
+        cortex_m::asm::wfi();
+    }
 }
 
 #[panic_handler]
 fn panic(_: &PanicInfo) -> ! {
     debug::exit(debug::EXIT_FAILURE);
-    loop {}
+    loop {
+        cortex_m::asm::wfi();
+    }
 }
