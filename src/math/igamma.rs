@@ -351,8 +351,8 @@ fn temme<F: Real>(a: F, x: F, dev: Dw<F>, eta_abs: F) -> GammaTails<F> {
 
 /// P(a, x), the regularized lower incomplete gamma function γ(a, x)/Γ(a).
 ///
-/// Domain: a > 0 finite, x ≥ 0 (x = +∞ allowed). Method: see the
-/// [module docs](self). Accuracy (f64, measured against mpmath at 40 digits in
+/// Domain: a > 0 finite, x ≥ 0 (x = +∞ allowed). Method: see [`crate::math`].
+/// Accuracy (f64, measured against mpmath at 40 digits in
 /// `tests/reference_vectors.rs`): relative 1e-12 for a ≥ 1 wherever the
 /// value is ≥ 1e-300; f32: 1e-5 relative wherever ≥ 1e-30. For a < 1 the
 /// complement-side value Q may carry an absolute error of a few ε.
