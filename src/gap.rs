@@ -68,8 +68,9 @@ pub fn silence_probability<F: Real>(
 /// reset has not arrived after t is wrong with probability α per attempt.
 /// t = Q⁻¹(k, α)/λ; for k = 1 exactly -ln α/λ.
 ///
-/// Domain: rate > 0 finite, 0 < α < 1, events ≥ 1. Accuracy: relative 1e-12
-/// (f64), 1e-5 (f32).
+/// Domain: rate > 0 finite, 0 < α < 1, events ≥ 1; a rate so low that the
+/// time overflows the type is out of range. Accuracy: relative 1e-12 (f64),
+/// 1e-5 (f32).
 ///
 /// ```
 /// use countward::gap::silence_threshold_s;
@@ -87,5 +88,10 @@ pub fn silence_threshold_s<F: Real>(rate_cps: F, alpha: F, events: u32) -> Resul
         return Err(Error::OutOfRange(Param::Events));
     }
     let x = gamma_q_inv(F::of_u32(events), alpha)?;
-    Ok(x / rate)
+    let t = x / rate;
+    // A rate so low that the answer overflows the type is an input error, not ∞.
+    if !t.is_finite() {
+        return Err(Error::OutOfRange(Param::RateCps));
+    }
+    Ok(t)
 }

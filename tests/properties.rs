@@ -239,4 +239,20 @@ proptest! {
             prop_assert!(t.p >= 0.0 && t.p <= 1.0 && !t.ln_p.is_nan());
         }
     }
+
+    /// The integer tier never panics (tests run with overflow checks on) and
+    /// its tails are probabilities, for any admissible mean, α and count.
+    #[test]
+    fn fixed_no_panics(raw in 0u64..=(2_000_000_000u64 << 32), ln_a in -(100_000i64 << 32)..-1i64, k in proptest::num::u32::ANY) {
+        let m = FixedMean::from_raw(raw).unwrap();
+        let a = FixedAlpha::from_ln_raw(ln_a).unwrap();
+        let up = countward::fixed::ln_at_least_q32(m, k);
+        let low = countward::fixed::ln_at_most_q32(m, k);
+        prop_assert!(up <= 0 && low <= 0);
+        let t = countward::fixed::alarm_threshold(m, a).unwrap();
+        prop_assert!(t.ln_tail_q32 <= ln_a);
+        if let Some(f) = countward::fixed::fault_threshold(m, a).unwrap() {
+            prop_assert!(f.ln_tail_q32 <= ln_a);
+        }
+    }
 }

@@ -159,6 +159,18 @@ fn check_open(flag: &str, v: f64) -> Result<f64, Failure> {
     )
 }
 
+/// A nonzero value that f32 cannot hold (it would round to 0) is reported, not rounded.
+fn check_f32(flag: &str, v: f64) -> Result<(), Failure> {
+    if v != 0.0 && (v as f32) < f32::MIN_POSITIVE {
+        return Err(bad(
+            flag,
+            v,
+            "is too small for the f32 tier (below 1.2e-38); use --math f64 or fixed",
+        ));
+    }
+    Ok(())
+}
+
 fn lib(e: Error) -> Failure {
     Failure(format!("error: {e}"))
 }
@@ -206,6 +218,9 @@ fn tail(a: TailArgs) -> Result<(String, Value), Failure> {
             ));
         }
     };
+    if a.math == Math::F32 {
+        check_f32("--mean", mean)?;
+    }
     let (p, ln_p) = match a.math {
         Math::F64 => {
             let t = if upper {
@@ -250,6 +265,10 @@ fn tail(a: TailArgs) -> Result<(String, Value), Failure> {
 fn threshold(a: ThresholdArgs) -> Result<(String, Value), Failure> {
     let mean = check_mean(a.mean)?;
     let alpha = check_open("--alpha", a.alpha)?;
+    if a.math == Math::F32 {
+        check_f32("--mean", mean)?;
+        check_f32("--alpha", alpha)?;
+    }
     // (counts, tail p) or None.
     let found: Option<(u32, f64)> = match (a.math, a.low) {
         (Math::F64, false) => poisson::alarm_threshold(mean, alpha)

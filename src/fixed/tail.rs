@@ -170,7 +170,7 @@ fn upper_sum(a: u64, mu: u64) -> i128 {
 /// Temme: small tail = e^{-bd0} (½ erfcx(y) ± R), y = √bd0, R = Σ c_k(η) a^{-k} / √(2πa).
 fn temme(a: u64, mu: u64, dev: i128) -> Tails {
     let upper_small = (mu as i128) > ((a as i128) << 32);
-    let eta2 = 2 * dev / a as i128; // Q64, ≤ 1
+    let eta2 = (2 * dev / a as i128).max(0); // Q64, ≤ 1
     let mut eta = isqrt((eta2 as u128) << 60) as i128; // Q62
     if !upper_small {
         eta = -eta;
@@ -188,7 +188,7 @@ fn temme(a: u64, mu: u64, dev: i128) -> Tails {
     }
     let root_2pi_a_40 = isqrt(((TWO_PI_62 * a as i128) as u128) << 18) as i128; // Q40
     let r = (sum << 40) / root_2pi_a_40; // Q62
-    let y = isqrt(dev as u128); // Q32
+    let y = isqrt(dev.max(0) as u128); // Q32
     let half = erfcx_62(y) / 2;
     let bracket = if upper_small { half + r } else { half - r };
     Tails {
