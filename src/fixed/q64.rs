@@ -90,19 +90,25 @@ pub(crate) fn exp(v: i128) -> u128 {
     }
 }
 
-/// ⌊√x⌋ for a u128 (Newton's iteration from a power-of-two start above the root).
+/// ⌊√x⌋ for a u128, digit by digit (shifts, adds and compares only: no
+/// division, which is a slow software routine on Cortex-M0).
 pub(crate) fn isqrt(x: u128) -> u128 {
     if x < 2 {
         return x;
     }
-    let mut r: u128 = 1 << (msb(x) / 2 + 1);
-    loop {
-        let next = (r + x / r) >> 1;
-        if next >= r {
-            return r;
+    let mut rem = x;
+    let mut root: u128 = 0;
+    let mut bit: u128 = 1 << (msb(x) & !1);
+    while bit != 0 {
+        if rem >= root + bit {
+            rem -= root + bit;
+            root = (root >> 1) + bit;
+        } else {
+            root >>= 1;
         }
-        r = next;
+        bit >>= 2;
     }
+    root
 }
 
 #[cfg(test)]

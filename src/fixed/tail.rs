@@ -123,7 +123,8 @@ fn bd0(a: u64, mu: u64) -> i128 {
                 break;
             }
             j += 2;
-            odd += ((two_a * p) / j) << 2;
+            // p < 2^62 fits an i64, so the division is a 64-bit one.
+            odd += (two_a * i128::from(p as i64 / j as i64)) << 2;
         }
         if v < 0 { sum - odd } else { sum + odd }
     } else {
@@ -176,15 +177,16 @@ fn temme(a: u64, mu: u64, dev: i128) -> Tails {
         eta = -eta;
     }
     let mut sum: i128 = 0;
-    for (k, coeffs) in TEMME_62.iter().enumerate() {
+    // a^{-k} by multiplying with 1/a in Q64 (one division in all).
+    let inv_a = ONE / a as i128;
+    let mut scale = ONE;
+    for coeffs in TEMME_62.iter() {
         let mut ck: i128 = 0;
         for c in coeffs.iter().rev() {
             ck = ((ck * eta) >> 62) + c;
         }
-        for _ in 0..k {
-            ck /= a as i128;
-        }
-        sum += ck;
+        sum += (ck * (scale >> 32)) >> 32;
+        scale = (scale * inv_a) >> 64;
     }
     let root_2pi_a_40 = isqrt(((TWO_PI_62 * a as i128) as u128) << 18) as i128; // Q40
     let r = (sum << 40) / root_2pi_a_40; // Q62
