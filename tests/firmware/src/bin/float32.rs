@@ -7,11 +7,10 @@
 #![no_main]
 
 use core::hint::black_box;
-use core::panic::PanicInfo;
-use cortex_m::peripheral::syst::SystClkSource;
 use cortex_m_rt::entry;
-use cortex_m_semihosting::{debug, hprintln};
+use cortex_m_semihosting::hprintln;
 use countward::poisson::{alarm_threshold, fault_threshold};
+use countward_firmware_checks::{exit, instructions, start_counter, ticks};
 
 /// (mean, α, alarm, fault) from tests/reference/thresholds.csv (mpmath).
 const CASES: [(f32, f32, u32, Option<u32>); 5] = [
@@ -22,19 +21,9 @@ const CASES: [(f32, f32, u32, Option<u32>); 5] = [
     (10_000_000.0, 1e-6, 10_015_036, Some(9_984_971)),
 ];
 
-const MILLITICKS_PER_INSTRUCTION: u64 = 64;
-
-fn ticks() -> u32 {
-    cortex_m::peripheral::SYST::get_current() & 0x00FF_FFFF
-}
-
 #[entry]
 fn main() -> ! {
-    let mut p = cortex_m::Peripherals::take().unwrap();
-    p.SYST.set_clock_source(SystClkSource::Core);
-    p.SYST.set_reload(0x00FF_FFFF);
-    p.SYST.clear_current();
-    p.SYST.enable_counter();
+    start_counter();
     let mut failures = 0u32;
     for &(mean, alpha, alarm, fault) in CASES.iter() {
         let t0 = ticks();
@@ -43,10 +32,8 @@ fn main() -> ! {
         let got_fault =
             fault_threshold(black_box(mean), black_box(alpha)).map(|t| t.map(|t| t.counts));
         let t2 = ticks();
-        let i_alarm =
-            u64::from(t0.wrapping_sub(t1) & 0x00FF_FFFF) * 1000 / MILLITICKS_PER_INSTRUCTION;
-        let i_fault =
-            u64::from(t1.wrapping_sub(t2) & 0x00FF_FFFF) * 1000 / MILLITICKS_PER_INSTRUCTION;
+        let i_alarm = instructions(t0, t1);
+        let i_fault = instructions(t1, t2);
         let ok = got_alarm == Ok(alarm) && got_fault == Ok(fault);
         failures += u32::from(!ok);
         hprintln!(
@@ -60,20 +47,5 @@ fn main() -> ! {
             if ok { "ok" } else { "MISMATCH" }
         );
     }
-    debug::exit(if failures == 0 {
-        debug::EXIT_SUCCESS
-    } else {
-        debug::EXIT_FAILURE
-    });
-    loop {
-        cortex_m::asm::wfi();
-    }
-}
-
-#[panic_handler]
-fn panic(_: &PanicInfo) -> ! {
-    debug::exit(debug::EXIT_FAILURE);
-    loop {
-        cortex_m::asm::wfi();
-    }
+    exit(failures == 0)
 }

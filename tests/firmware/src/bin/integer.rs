@@ -10,11 +10,10 @@
 #![no_main]
 
 use core::hint::black_box;
-use core::panic::PanicInfo;
-use cortex_m::peripheral::syst::SystClkSource;
 use cortex_m_rt::entry;
-use cortex_m_semihosting::{debug, hprintln};
+use cortex_m_semihosting::hprintln;
 use countward::fixed::{FixedAlpha, FixedMean, alarm_threshold, fault_threshold};
+use countward_firmware_checks::{exit, instructions, start_counter, ticks};
 
 /// (mean in counts, α = 1/n, alarm threshold, fault threshold) from
 /// tests/reference/thresholds.csv (mpmath, 40 digits); none of these is
@@ -31,20 +30,9 @@ const CASES: [(u32, u64, u32, Option<u32>); 9] = [
     (10_000_000, 1_000_000, 10_015_036, Some(9_984_971)),
 ];
 
-/// SysTick ticks per instruction × 1000 at -icount shift=2 on the 16 MHz micro:bit model.
-const MILLITICKS_PER_INSTRUCTION: u64 = 64;
-
-fn ticks() -> u32 {
-    cortex_m::peripheral::SYST::get_current() & 0x00FF_FFFF
-}
-
 #[entry]
 fn main() -> ! {
-    let mut p = cortex_m::Peripherals::take().unwrap();
-    p.SYST.set_clock_source(SystClkSource::Core);
-    p.SYST.set_reload(0x00FF_FFFF);
-    p.SYST.clear_current();
-    p.SYST.enable_counter();
+    start_counter();
 
     let mut failures = 0u32;
     for &(mean, one_in, alarm, fault) in CASES.iter() {
@@ -56,10 +44,8 @@ fn main() -> ! {
         let got_fault = fault_threshold(m, a).map(|t| t.map(|t| t.counts));
         let t2 = ticks();
         // SysTick counts down.
-        let i_alarm =
-            u64::from(t0.wrapping_sub(t1) & 0x00FF_FFFF) * 1000 / MILLITICKS_PER_INSTRUCTION;
-        let i_fault =
-            u64::from(t1.wrapping_sub(t2) & 0x00FF_FFFF) * 1000 / MILLITICKS_PER_INSTRUCTION;
+        let i_alarm = instructions(t0, t1);
+        let i_fault = instructions(t1, t2);
         let ok = got_alarm == Ok(alarm) && got_fault == Ok(fault);
         if !ok {
             failures += 1;
@@ -82,20 +68,8 @@ fn main() -> ! {
             "integer tier on Cortex-M0: all {} cases agree with mpmath",
             CASES.len()
         );
-        debug::exit(debug::EXIT_SUCCESS);
     } else {
         hprintln!("integer tier on Cortex-M0: {} cases disagree", failures);
-        debug::exit(debug::EXIT_FAILURE);
     }
-    loop {
-        cortex_m::asm::wfi();
-    }
-}
-
-#[panic_handler]
-fn panic(_: &PanicInfo) -> ! {
-    debug::exit(debug::EXIT_FAILURE);
-    loop {
-        cortex_m::asm::wfi();
-    }
+    exit(failures == 0)
 }
