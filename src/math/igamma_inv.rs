@@ -32,12 +32,7 @@ pub(crate) fn normal_upper_quantile_rough_ln<F: Real>(ln_p: F) -> F {
 
 /// The x with P(a, x) = p (when `lower`) or Q(a, x) = p, for 0 < p < 1.
 fn invert<F: Real>(a: F, p: F, lower: bool) -> Result<F, Error> {
-    if !a.is_finite() {
-        return Err(Error::NotFinite(Param::Shape));
-    }
-    if a <= F::ZERO {
-        return Err(Error::OutOfRange(Param::Shape));
-    }
+    check_shape_arg(a, F::ZERO)?;
     crate::error::check_open_unit(p, Param::Probability)?;
     // Exact for a = 1: P(1, x) = 1 - e^{-x}.
     if a == F::ONE {

@@ -69,12 +69,8 @@ pub trait Real:
     fn of(v: f64) -> Self;
     /// Converts a count (exact in `f64`; exact in `f32` up to 2^24).
     fn of_u32(n: u32) -> Self;
-    /// Converts to `f64` exactly.
-    fn to_f64(self) -> f64;
     /// e^x.
     fn exp(self) -> Self;
-    /// e^x - 1, accurate for small x.
-    fn exp_m1(self) -> Self;
     /// Natural logarithm.
     fn ln(self) -> Self;
     /// ln(1 + x), accurate for small x.
@@ -98,7 +94,7 @@ pub trait Real:
 }
 
 macro_rules! impl_real {
-    ($t:ty, $exp:path, $expm1:path, $ln:path, $ln1p:path, $sqrt:path, $floor:path,
+    ($t:ty, $exp:path, $ln:path, $ln1p:path, $sqrt:path, $floor:path,
      $erfc:path, $lgamma:path, $terms:expr, $degree:expr, $erfcx_from:expr, $product:expr,
      $compensated:expr, $splitter:expr) => {
         impl Real for $t {
@@ -126,16 +122,8 @@ macro_rules! impl_real {
                 n as $t
             }
             #[inline]
-            fn to_f64(self) -> f64 {
-                self as f64
-            }
-            #[inline]
             fn exp(self) -> Self {
                 $exp(self)
-            }
-            #[inline]
-            fn exp_m1(self) -> Self {
-                $expm1(self)
             }
             #[inline]
             fn ln(self) -> Self {
@@ -184,7 +172,6 @@ macro_rules! impl_real {
 impl_real!(
     f64,
     libm::exp,
-    libm::expm1,
     libm::log,
     libm::log1p,
     libm::sqrt,
@@ -201,7 +188,6 @@ impl_real!(
 impl_real!(
     f32,
     libm::expf,
-    libm::expm1f,
     libm::logf,
     libm::log1pf,
     libm::sqrtf,
