@@ -25,6 +25,18 @@ pub enum Param {
     Probability,
     /// A number of events (must be at least 1).
     Events,
+    /// A tick period or a duration in ticks.
+    Ticks,
+    /// A smoothing shift (weight 2^-shift).
+    Shift,
+    /// A count threshold, or a set of thresholds that must be ordered.
+    Threshold,
+    /// A dead time in seconds.
+    DeadTime,
+    /// A fraction that must lie in (0, 1].
+    Fraction,
+    /// A target number of counts.
+    TargetCounts,
 }
 
 impl Param {
@@ -40,6 +52,12 @@ impl Param {
             Param::X => "x",
             Param::Probability => "probability",
             Param::Events => "events",
+            Param::Ticks => "ticks",
+            Param::Shift => "shift",
+            Param::Threshold => "threshold",
+            Param::DeadTime => "dead_time_s",
+            Param::Fraction => "fraction",
+            Param::TargetCounts => "target_counts",
         }
     }
 }

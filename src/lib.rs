@@ -6,12 +6,17 @@
 #[cfg(feature = "std")]
 extern crate std;
 
+pub mod alarm;
+pub mod detect;
 pub mod error;
 pub mod fixed;
 pub mod gap;
 pub mod math;
 pub mod poisson;
+pub mod rate;
 mod search;
+pub mod ticks;
 
 pub use error::{Error, Param};
 pub use math::Real;
+pub use ticks::Ticks;

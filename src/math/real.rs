@@ -91,6 +91,10 @@ pub trait Real:
     fn is_nan(self) -> bool;
     /// Saturating conversion to `u32` (NaN → 0), after truncation toward zero.
     fn to_u32_saturating(self) -> u32;
+    /// Saturating conversion to `u64` (NaN → 0), after truncation toward zero.
+    fn to_u64_saturating(self) -> u64;
+    /// Converts a 64-bit count (rounding to nearest above 2^53 or 2^24).
+    fn of_u64(n: u64) -> Self;
 }
 
 macro_rules! impl_real {
@@ -164,6 +168,14 @@ macro_rules! impl_real {
             #[inline]
             fn to_u32_saturating(self) -> u32 {
                 self as u32
+            }
+            #[inline]
+            fn to_u64_saturating(self) -> u64 {
+                self as u64
+            }
+            #[inline]
+            fn of_u64(n: u64) -> Self {
+                n as $t
             }
         }
     };
