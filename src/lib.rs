@@ -11,7 +11,10 @@ pub mod detect;
 pub mod error;
 pub mod fixed;
 pub mod gap;
+#[cfg(feature = "embedded-hal")]
+pub mod hal;
 pub mod math;
+pub mod plan;
 pub mod poisson;
 pub mod rate;
 mod search;
