@@ -97,7 +97,11 @@ pub fn sliding_upcrossings_per_tick<F: Real>(
 /// assert!(sliding_upcrossings_per_tick(0.5_f64, 10, k).unwrap() <= 1.0 / 86_400.0);
 /// assert!(sliding_upcrossings_per_tick(0.5_f64, 10, k - 1).unwrap() > 1.0 / 86_400.0);
 /// ```
-pub fn sliding_threshold<F: Real>(mean_per_tick: F, bins: u32, max_per_tick: F) -> Result<u32, Error> {
+pub fn sliding_threshold<F: Real>(
+    mean_per_tick: F,
+    bins: u32,
+    max_per_tick: F,
+) -> Result<u32, Error> {
     let mu = check_range(mean_per_tick, F::ZERO, F::of(1e8), Param::Mean)?;
     if bins == 0 {
         return Err(Error::OutOfRange(Param::Ticks));
