@@ -45,10 +45,11 @@ impl AlarmConfig {
 /// Levels and faults with persistence, hysteresis and latching, emitting
 /// events into a queue of `Q` entries.
 ///
-/// * **Active level**: rises to the lowest level that the *set* thresholds
-///   held over `raise_ticks` consecutive ticks; falls to the highest level
-///   the *clearing* thresholds held over `clear_ticks` consecutive ticks
-///   below the active level. Each change is an event.
+/// * **Active level**: rises to a level once the count has been at or above
+///   that level's *set* threshold for `raise_ticks` consecutive ticks (the
+///   highest such level); falls below a level once the count has been below
+///   that level's *clearing* threshold for `clear_ticks` consecutive ticks.
+///   Each change is one event.
 /// * **Latched level**: the highest active level since the last
 ///   acknowledgement. [`AlarmMachine::acknowledge`] sets it back to the
 ///   active level, so an alarm that is still active stays latched, and one
@@ -83,10 +84,8 @@ pub struct AlarmMachine<const Q: usize> {
     config: AlarmConfig,
     active: Level,
     latched: Level,
-    up_level: Level,
-    down_level: Level,
-    up_run: u16,
-    down_run: u16,
+    up_runs: [u16; 2],
+    down_runs: [u16; 2],
     faults_active: Faults,
     faults_latched: Faults,
     fault_runs: [u16; 4],
@@ -101,10 +100,8 @@ impl<const Q: usize> AlarmMachine<Q> {
             config,
             active: Level::Normal,
             latched: Level::Normal,
-            up_level: Level::Normal,
-            down_level: Level::Normal,
-            up_run: 0,
-            down_run: 0,
+            up_runs: [0; 2],
+            down_runs: [0; 2],
             faults_active: Faults::NONE,
             faults_latched: Faults::NONE,
             fault_runs: [0; 4],
@@ -133,45 +130,45 @@ impl<const Q: usize> AlarmMachine<Q> {
 
     fn update_level(&mut self, now: Ticks, c: Classification) {
         let hold = c.hold.max(c.raise);
-        if c.raise > self.active {
-            self.up_run = self.up_run.saturating_add(1);
-            self.up_level = if self.up_run == 1 {
-                c.raise
+        // Consecutive ticks at or above each level's set threshold, and below
+        // each level's clearing threshold (index 0: warning, 1: alarm).
+        for (i, level) in [Level::Warning, Level::Alarm].into_iter().enumerate() {
+            self.up_runs[i] = if c.raise >= level {
+                self.up_runs[i].saturating_add(1)
             } else {
-                self.up_level.min(c.raise)
+                0
             };
-        } else {
-            self.up_run = 0;
-        }
-        if self.up_run >= self.config.raise_ticks {
-            self.active = self.up_level;
-            self.latched = self.latched.max(self.active);
-            self.up_run = 0;
-            self.down_run = 0;
-            self.emit(now, EventKind::Raised(self.active));
-            return;
-        }
-        if hold < self.active {
-            self.down_run = self.down_run.saturating_add(1);
-            self.down_level = if self.down_run == 1 {
-                hold
+            self.down_runs[i] = if hold < level {
+                self.down_runs[i].saturating_add(1)
             } else {
-                self.down_level.max(hold)
+                0
             };
-        } else {
-            self.down_run = 0;
         }
-        if self.down_run >= self.config.clear_ticks {
-            let from = self.active;
-            self.active = self.down_level;
-            self.down_run = 0;
-            self.emit(
-                now,
-                EventKind::Lowered {
-                    from,
-                    to: self.active,
-                },
-            );
+        let from = self.active;
+        let mut to = from;
+        for (i, level) in [Level::Warning, Level::Alarm].into_iter().enumerate() {
+            if to < level && self.up_runs[i] >= self.config.raise_ticks {
+                to = level;
+            }
+        }
+        if to == from {
+            for (i, level) in [Level::Warning, Level::Alarm].into_iter().enumerate().rev() {
+                if to >= level && self.down_runs[i] >= self.config.clear_ticks {
+                    to = if i == 0 {
+                        Level::Normal
+                    } else {
+                        Level::Warning
+                    };
+                }
+            }
+        }
+        if to > from {
+            self.active = to;
+            self.latched = self.latched.max(to);
+            self.emit(now, EventKind::Raised(to));
+        } else if to < from {
+            self.active = to;
+            self.emit(now, EventKind::Lowered { from, to });
         }
     }
 
@@ -254,8 +251,18 @@ impl<const Q: usize> NextDeadline for AlarmMachine<Q> {
     /// The next tick while a persistence count is running (a change may
     /// happen then); `None` when only new input can change the state.
     fn next_deadline(&self) -> Option<Ticks> {
-        let running =
-            self.up_run > 0 || self.down_run > 0 || self.fault_runs.iter().any(|&r| r > 0);
+        let levels = [Level::Warning, Level::Alarm];
+        let pending_up = self
+            .up_runs
+            .iter()
+            .zip(levels)
+            .any(|(&r, l)| r > 0 && self.active < l);
+        let pending_down = self
+            .down_runs
+            .iter()
+            .zip(levels)
+            .any(|(&r, l)| r > 0 && self.active >= l);
+        let running = pending_up || pending_down || self.fault_runs.iter().any(|&r| r > 0);
         if running {
             Some(self.last.plus(1))
         } else {

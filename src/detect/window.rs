@@ -1,6 +1,6 @@
 //! Excess and low counts in a sliding window, against a learned background.
 
-use super::level::{Classification, LevelThresholds, ThresholdPlan};
+use super::level::{Classification, Level, LevelThresholds, ThresholdPlan};
 use crate::error::{Error, Param};
 use crate::fixed::FixedMean;
 use crate::rate::{BinWindow, SmoothedRate};
@@ -14,9 +14,10 @@ use crate::ticks::Ticks;
 ///   ([`Classification`]: warning/alarm raise and hold, low-count raise and
 ///   hold). Integer only, O(1).
 /// * Background: a [`SmoothedRate`] of counts per tick with a long time
-///   constant, fed only with ticks whose window is quiet (no level held, no
-///   low count held) and while learning is enabled, so it is frozen during
-///   an excess (a source does not teach itself as background) and during a
+///   constant, fed only outside excess and low-count episodes (from a set
+///   threshold reached until the count is back below the clearing
+///   threshold) and while learning is enabled, so it is frozen during an
+///   excess (a source does not teach itself as background) and during a
 ///   low-count fault (a dead tube does not teach zero). It starts settled at
 ///   the background given to [`WindowDetector::new`] (from calibration),
 ///   and never goes below the floor given there.
@@ -64,6 +65,7 @@ pub struct WindowDetector<const N: usize> {
     thresholds: Option<LevelThresholds>,
     basis_q32: u64,
     learning: bool,
+    in_episode: bool,
 }
 
 impl<const N: usize> WindowDetector<N> {
@@ -85,6 +87,7 @@ impl<const N: usize> WindowDetector<N> {
             thresholds: None,
             basis_q32: 0,
             learning: true,
+            in_episode: false,
         })
     }
 
@@ -95,7 +98,13 @@ impl<const N: usize> WindowDetector<N> {
             Some(t) if self.window.is_full() => t.classify(self.window.sum_u32()),
             _ => Classification::QUIET,
         };
-        if self.learning && c.is_quiet() {
+        // An excess episode runs from a set threshold reached until the count
+        // falls below the clearing threshold (likewise for low counts); only
+        // ticks outside episodes teach the background. Excluding just the
+        // hysteresis band would bias the background low.
+        let raised = c.raise > Level::Normal || c.low_raise;
+        self.in_episode = raised || (self.in_episode && !c.is_quiet());
+        if self.learning && !self.in_episode {
             self.background.update(counts);
         }
         c

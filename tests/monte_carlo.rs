@@ -1,0 +1,411 @@
+//! Seeded Monte-Carlo runs of the real chain on simulated Poisson streams:
+//! false-alarm rates at background against their plans, and detection
+//! delays for a step increase, for each detector. Seeds are printed on
+//! failure (rerun with `COUNTWARD_SEED=…`); `COUNTWARD_LONG=1` runs each
+//! simulation 25 to 50 times longer. Figures are printed with `--nocapture`.
+
+mod common;
+
+use countward::Ticks;
+use countward::alarm::{AlarmConfig, AlarmMachine, EventKind, Faults, Level};
+use countward::detect::{
+    CusumConfig, LevelThresholds, PoissonCusum, SilenceFleet, SilencePlan, Sprt, SprtConfig,
+    SprtDecision, ThresholdPlan, WindowDetector,
+};
+use countward::fixed::{FixedAlpha, FixedMean};
+use countward::plan::{sliding_threshold, sliding_upcrossings_per_tick};
+use countward::poisson::at_least;
+use statrs::distribution::{Discrete, Poisson};
+
+const BACKGROUND_CPS: f64 = 2.0;
+const WINDOW: usize = 10;
+
+fn hours(short: f64) -> f64 {
+    if common::long_runs() {
+        short * 50.0
+    } else {
+        short
+    }
+}
+
+#[test]
+fn sliding_window_alarm_starts_match_the_exact_upcrossing_plan() {
+    let seed = common::seed(0x5eed_0201);
+    let mut rng = common::rng(seed);
+    // Plan 40 alarm starts per hour so that a short run measures them well.
+    let target = 40.0 / 3600.0;
+    let k = sliding_threshold(BACKGROUND_CPS, WINDOW as u32, target).unwrap();
+    let planned = sliding_upcrossings_per_tick(BACKGROUND_CPS, WINDOW as u32, k).unwrap();
+    let mut d = WindowDetector::<WINDOW>::new(
+        FixedMean::from_counts(2).unwrap(),
+        FixedMean::from_counts(1).unwrap(),
+        12,
+    )
+    .unwrap();
+    d.set_thresholds(
+        LevelThresholds::new(k, k, u32::MAX, u32::MAX, None).unwrap(),
+        FixedMean::from_counts(20).unwrap(),
+    );
+    let mut m = AlarmMachine::<8>::new(AlarmConfig::new(1, 1, 1, 1).unwrap());
+    let ticks = (hours(20.0) * 3600.0) as u32;
+    let mut starts = 0u64;
+    for t in 0..ticks {
+        let c = d.tick(Ticks(t), common::poisson(&mut rng, BACKGROUND_CPS));
+        m.update(Ticks(t), c, Faults::NONE);
+        while let Some(e) = m.poll_event() {
+            starts += u64::from(e.kind == EventKind::Raised(Level::Warning));
+        }
+    }
+    let expected = planned * f64::from(ticks);
+    let per_hour = starts as f64 / (f64::from(ticks) / 3600.0);
+    eprintln!(
+        "window k={k}: {per_hour:.2} alarm starts/h, planned {:.2}/h (per-check α {:.2e})",
+        planned * 3600.0,
+        at_least(BACKGROUND_CPS * WINDOW as f64, k).unwrap().p
+    );
+    // Starts are close to Poisson; allow for mild clustering (variance ×2).
+    common::assert_close(
+        "alarm starts",
+        seed,
+        starts as f64,
+        expected,
+        (2.0 * expected).sqrt(),
+        4.5,
+    );
+}
+
+#[test]
+fn the_learning_chain_keeps_its_false_alarm_plan_and_detects_a_source() {
+    let seed = common::seed(0x5eed_0202);
+    let mut rng = common::rng(seed);
+    let plan = ThresholdPlan::new(
+        FixedAlpha::one_in(2_000).unwrap(),
+        FixedAlpha::one_in(1_000_000).unwrap(),
+        FixedAlpha::one_in(20).unwrap(),
+        FixedAlpha::one_in(1_000_000).unwrap(),
+    )
+    .unwrap();
+    // Calibration says 1.8 cps; the true background is 2 cps: the chain learns it.
+    let start = FixedMean::from_ratio(18, 10).unwrap();
+    let mut d =
+        WindowDetector::<WINDOW>::new(start, FixedMean::from_ratio(1, 2).unwrap(), 10).unwrap();
+    let mut m = AlarmMachine::<16>::new(AlarmConfig::new(2, 3, 5, 5).unwrap());
+    let ticks = (hours(20.0) * 3600.0) as u32;
+    let (mut warnings, mut alarms) = (0u64, 0u64);
+    for t in 0..ticks {
+        let c = d.tick(Ticks(t), common::poisson(&mut rng, BACKGROUND_CPS));
+        if d.needs_refresh() {
+            d.refresh(&plan).unwrap();
+        }
+        m.update(Ticks(t), c, Faults::NONE);
+        d.set_learning(m.active() == Level::Normal && m.active_faults().is_empty());
+        while let Some(e) = m.poll_event() {
+            match e.kind {
+                EventKind::Raised(Level::Warning) => warnings += 1,
+                EventKind::Raised(Level::Alarm) => alarms += 1,
+                _ => {}
+            }
+        }
+    }
+    let learned = d.background_per_window().unwrap().raw() as f64 / 4_294_967_296.0;
+    let h = f64::from(ticks) / 3600.0;
+    // Plan bound: the raw upcrossing rate of the warning threshold at the true
+    // background (persistence and hysteresis can only merge or drop starts).
+    let warn_set = d.thresholds().unwrap().warn_set();
+    let bound = sliding_upcrossings_per_tick(BACKGROUND_CPS, WINDOW as u32, warn_set).unwrap()
+        * f64::from(ticks);
+    eprintln!(
+        "learning chain: background learned {learned:.2}/window (true 20); warnings {:.2}/h (upcrossing bound {:.2}/h), alarms {:.3}/h",
+        warnings as f64 / h,
+        bound / h,
+        alarms as f64 / h
+    );
+    common::assert_close(
+        "learned background per window",
+        seed,
+        learned,
+        20.0,
+        20.0 * 0.06,
+        4.0,
+    );
+    assert!(
+        warnings as f64 <= bound + 4.5 * (2.0 * bound).sqrt(),
+        "seed {seed}: {warnings} warnings, bound {bound}"
+    );
+    let alarm_bound = sliding_upcrossings_per_tick(
+        BACKGROUND_CPS,
+        WINDOW as u32,
+        d.thresholds().unwrap().alarm_set(),
+    )
+    .unwrap()
+        * f64::from(ticks);
+    assert!(
+        (alarms as f64) <= alarm_bound + 4.5 * alarm_bound.sqrt() + 3.0,
+        "seed {seed}: {alarms} alarms, bound {alarm_bound}"
+    );
+
+    // Detection delay of a 10 cps source stepping in, over repeated passes.
+    let alarm_set = d.thresholds().unwrap().alarm_set();
+    let source_cps = 10.0;
+    let passes = if common::long_runs() { 20_000 } else { 600 };
+    let mut delays = Vec::with_capacity(passes);
+    let mut t = ticks;
+    for _ in 0..passes {
+        let mut m = AlarmMachine::<16>::new(AlarmConfig::new(2, 3, 5, 5).unwrap());
+        let mut probe = d.clone();
+        probe.set_learning(false);
+        for _ in 0..WINDOW {
+            let c = probe.tick(Ticks(t), common::poisson(&mut rng, BACKGROUND_CPS));
+            m.update(Ticks(t), c, Faults::NONE);
+            t += 1;
+        }
+        let step = t;
+        loop {
+            let c = probe.tick(
+                Ticks(t),
+                common::poisson(&mut rng, BACKGROUND_CPS + source_cps),
+            );
+            m.update(Ticks(t), c, Faults::NONE);
+            t += 1;
+            if m.active() == Level::Alarm || t - step > 200 {
+                break;
+            }
+        }
+        delays.push(t - step);
+    }
+    delays.sort_unstable();
+    let median = delays[passes / 2];
+    let mean = delays.iter().map(|&x| f64::from(x)).sum::<f64>() / passes as f64;
+    // Bound: the first passage is no later than the first tick at which the
+    // window count itself reaches the threshold with probability ≥ 1/2, plus
+    // one tick of persistence.
+    let half_by = (1..=WINDOW as u32)
+        .chain(std::iter::repeat(WINDOW as u32).take(50))
+        .enumerate()
+        .find(|&(_, d)| {
+            let mean = BACKGROUND_CPS * WINDOW as f64 + source_cps * f64::from(d);
+            at_least(mean, alarm_set).unwrap().p >= 0.5
+        })
+        .map(|(i, _)| i as u32 + 1)
+        .unwrap();
+    eprintln!(
+        "window detector: 10 cps step on 2 cps, alarm at {alarm_set} counts/10 s: median delay {median} s, mean {mean:.2} s (bound {} s)",
+        half_by + 1
+    );
+    assert!(
+        median <= half_by + 1,
+        "seed {seed}: median delay {median} s"
+    );
+}
+
+/// Brook & Evans (1972) zero-start ARL on the lattice (independent f64 reference).
+fn brook_evans_arl0(mean: f64, scale: u32, reference: u32, decision: u32) -> f64 {
+    let d = Poisson::new(mean).unwrap();
+    let n = decision as usize;
+    let mut a = vec![vec![0.0; n + 1]; n];
+    for (i, row) in a.iter_mut().enumerate() {
+        row[i] += 1.0;
+        row[n] = 1.0;
+        let mut x = 0i64;
+        loop {
+            let next = (i as i64 + i64::from(scale) * x - i64::from(reference)).max(0);
+            if next >= n as i64 {
+                break;
+            }
+            row[next as usize] -= d.pmf(x as u64);
+            x += 1;
+        }
+    }
+    for c in 0..n {
+        for r in 0..n {
+            if r != c {
+                let f = a[r][c] / a[c][c];
+                for k in c..=n {
+                    a[r][k] -= f * a[c][k];
+                }
+            }
+        }
+    }
+    a[0][n] / a[0][0]
+}
+
+#[test]
+fn cusum_false_alarms_per_hour_and_delay_match_brook_evans() {
+    let seed = common::seed(0x5eed_0203);
+    let mut rng = common::rng(seed);
+    // 1 s ticks, background 2 counts per tick, designed for 6 per tick; h = 4.
+    let config = CusumConfig::for_means(2.0_f64, 6.0, 4.0, 4, false).unwrap();
+    let arl0 = brook_evans_arl0(2.0, config.scale(), config.reference(), config.decision());
+    let arl1 = brook_evans_arl0(6.0, config.scale(), config.reference(), config.decision());
+    let ticks = (hours(20.0) * 3600.0) as u32;
+    let mut c = PoissonCusum::new(config);
+    let mut signals = 0u64;
+    for _ in 0..ticks {
+        signals += u64::from(c.update(common::poisson(&mut rng, 2.0)));
+    }
+    let expected = f64::from(ticks) / arl0;
+    let h = f64::from(ticks) / 3600.0;
+    // Delay after a step, from the state the background left.
+    let runs = if common::long_runs() { 50_000 } else { 2_000 };
+    let mut total = 0u64;
+    for _ in 0..runs {
+        let mut n = 0u64;
+        loop {
+            n += 1;
+            if c.update(common::poisson(&mut rng, 6.0)) {
+                break;
+            }
+        }
+        total += n;
+        for _ in 0..20 {
+            if c.update(common::poisson(&mut rng, 2.0)) {
+                c.reset();
+            }
+        }
+    }
+    let mean_delay = total as f64 / runs as f64;
+    eprintln!(
+        "CUSUM (k={:.2}, h=4): {:.1} false alarms/h (Brook–Evans {:.1}/h, ARL0 {arl0:.1} ticks); mean delay {mean_delay:.2} ticks (ARL1 from zero {arl1:.2})",
+        config.reference_counts::<f64>(),
+        signals as f64 / h,
+        3600.0 / arl0
+    );
+    // Signals of a restarted CUSUM form a renewal process: variance ≈ count.
+    common::assert_close(
+        "CUSUM false alarms",
+        seed,
+        signals as f64,
+        expected,
+        (1.2 * expected).sqrt(),
+        4.5,
+    );
+    // The state at the step is ≥ 0, so the delay is at most ARL1 from zero.
+    assert!(
+        mean_delay <= arl1 * (1.0 + 4.5 / (runs as f64).sqrt()),
+        "seed {seed}: {mean_delay} vs {arl1}"
+    );
+}
+
+#[test]
+fn sprt_surveillance_false_alarms_stay_below_walds_plan() {
+    let seed = common::seed(0x5eed_0204);
+    let mut rng = common::rng(seed);
+    // 100 ms ticks: background 2 cps (0.2 per tick) against 6 cps; α = 1e-3, β = 0.05.
+    let (m0, m1, alpha, beta) = (0.2_f64, 0.6, 1e-3, 0.05);
+    let config = SprtConfig::for_means(m0, m1, alpha, beta, 1 << 16, 0).unwrap();
+    let ln_a = ((1.0 - beta) / alpha).ln();
+    let ln_b = (beta / (1.0 - alpha)).ln();
+    let drift0 = m0 * (m1 / m0).ln() - (m1 - m0);
+    let drift1 = m1 * (m1 / m0).ln() - (m1 - m0);
+    // Wald: E0[T] = [(1−α) ln B + α ln A]/drift0, E1[T] = [β ln B + (1−β) ln A]/drift1 (ticks).
+    let e0 = ((1.0 - alpha) * ln_b + alpha * ln_a) / drift0;
+    let e1 = (beta * ln_b + (1.0 - beta) * ln_a) / drift1;
+    let planned_per_tick = alpha / e0;
+    let ticks = (hours(20.0) * 36_000.0) as u32;
+    let mut t = Sprt::new(config);
+    let mut alarms = 0u64;
+    for n in 0..ticks {
+        alarms += u64::from(
+            t.update(Ticks(n), common::poisson(&mut rng, m0)) == SprtDecision::RateIncrease,
+        );
+    }
+    let h = f64::from(ticks) / 36_000.0;
+    let planned = planned_per_tick * f64::from(ticks);
+    // Delay after a step, with the test restarted at the step.
+    let runs = if common::long_runs() { 50_000 } else { 2_000 };
+    let (mut total, mut detected) = (0u64, 0u64);
+    for r in 0..runs {
+        let mut t = Sprt::new(config);
+        let mut n = 0u32;
+        loop {
+            n += 1;
+            match t.update(Ticks(r + n), common::poisson(&mut rng, m1)) {
+                SprtDecision::RateIncrease => {
+                    detected += 1;
+                    break;
+                }
+                SprtDecision::Continue => {}
+                _ => {}
+            }
+            if n > 10_000 {
+                break;
+            }
+        }
+        total += u64::from(n);
+    }
+    let mean_delay = total as f64 / runs as f64;
+    eprintln!(
+        "SPRT (2→6 cps, 100 ms ticks, α=1e-3, β=0.05): {:.3} false alarms/h (Wald plan {:.3}/h); mean delay {:.2} s (Wald E1[T] per test {:.2} s), {detected}/{runs} detected",
+        alarms as f64 / h,
+        planned / h,
+        mean_delay / 10.0,
+        e1 / 10.0
+    );
+    // Overshoot makes the real rate lower than Wald's approximation.
+    assert!(
+        alarms as f64 <= planned + 4.5 * planned.sqrt() + 2.0,
+        "seed {seed}: {alarms} vs plan {planned}"
+    );
+    assert_eq!(
+        detected,
+        u64::from(runs),
+        "seed {seed}: a 3-fold step must always be found (restarts after H0)"
+    );
+    assert!(
+        mean_delay <= 2.0 * e1,
+        "seed {seed}: delay {mean_delay} ticks vs Wald {e1}"
+    );
+}
+
+#[test]
+fn fleet_false_silences_stay_within_plan() {
+    let seed = common::seed(0x5eed_0205);
+    let mut rng = common::rng(seed);
+    let alpha = 1e-2;
+    let plan = SilencePlan::<16>::new(alpha, 8, 60_000).unwrap();
+    const DEVICES: usize = 40;
+    let mut fleet = SilenceFleet::<DEVICES, 16>::new(plan);
+    // Millisecond ticks; each device has its own rate (0.05 to 2 events/s).
+    let rates: Vec<f64> = (0..DEVICES)
+        .map(|i| 0.05 * (1.0 + i as f64 * 39.0 / (DEVICES as f64 - 1.0)))
+        .collect();
+    let horizon_ms = hours(3.0) * 3.6e6;
+    let mut events: Vec<(f64, usize)> = Vec::new();
+    for (i, &r) in rates.iter().enumerate() {
+        let mut t = 0.0;
+        loop {
+            t += common::exponential(&mut rng, r) * 1000.0;
+            if t > horizon_ms {
+                break;
+            }
+            events.push((t, i));
+        }
+    }
+    events.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let (mut silences, mut watched_gaps) = (0u64, 0u64);
+    let mut gaps_seen = [0u32; DEVICES];
+    for &(t, i) in &events {
+        let now = Ticks(t as u32);
+        while let Some(_silent) = fleet.next_silent(now) {
+            silences += 1;
+        }
+        fleet.event(i, now).unwrap();
+        gaps_seen[i] += 1;
+        if gaps_seen[i] > 8 {
+            watched_gaps += 1;
+        }
+    }
+    let planned = alpha * watched_gaps as f64;
+    eprintln!(
+        "fleet: {silences} false silences in {watched_gaps} watched gaps ({:.4} per gap; plan α = {alpha}, at most α after the first halving)",
+        silences as f64 / watched_gaps as f64
+    );
+    assert!(
+        silences as f64 <= planned + 4.5 * planned.sqrt(),
+        "seed {seed}"
+    );
+    assert!(
+        silences as f64 >= 0.5 * planned - 4.5 * planned.sqrt(),
+        "seed {seed}: far fewer than planned ({silences} vs {planned})"
+    );
+}
