@@ -13,68 +13,29 @@ use countward::detect::{
     SilencePlan, Sprt, SprtConfig, SprtDecision, WindowDetector,
 };
 use countward::fixed::FixedMean;
-use statrs::distribution::{Discrete, DiscreteCDF, Poisson};
-
-/// Brook & Evans (1972): average run length of a Poisson CUSUM on a lattice
-/// of 1/scale counts, from every start state; "signal when S ≥ h".
-fn brook_evans_arl(mean: f64, scale: u32, reference: u32, decision: u32) -> Vec<f64> {
-    let d = Poisson::new(mean).unwrap();
-    let states = decision as usize;
-    // (I − R) L = 1, dense Gaussian elimination.
-    let mut a = vec![vec![0.0; states + 1]; states];
-    for (i, row) in a.iter_mut().enumerate() {
-        row[i] += 1.0;
-        row[states] = 1.0;
-        // next = max(0, i + scale x − reference)
-        let mut x = 0u64;
-        loop {
-            let next = (i as i64 + (scale as i64) * x as i64 - reference as i64).max(0);
-            if next >= states as i64 {
-                break;
-            }
-            row[next as usize] -= d.pmf(x);
-            x += 1;
-        }
-    }
-    for c in 0..states {
-        let p = (c..states)
-            .max_by(|&i, &j| a[i][c].abs().total_cmp(&a[j][c].abs()))
-            .unwrap();
-        a.swap(c, p);
-        for r in 0..states {
-            if r != c {
-                let f = a[r][c] / a[c][c];
-                for k in c..=states {
-                    a[r][k] -= f * a[c][k];
-                }
-            }
-        }
-    }
-    (0..states).map(|i| a[i][states] / a[i][i]).collect()
-}
 
 #[test]
 fn brook_evans_reference_reproduces_the_published_arl() {
     // IAcsSPCR R package documentation (J. Lawson), Lucas's scheme:
     // arl(h = 6, k = 2, lambda = 1.88) -> "ARL= 37.2", "ARL(FIR)= 29.19";
     // shift 0.9627 sigma (mean 3.20) -> 5.49 and 3.33.
-    let l = brook_evans_arl(1.88, 1, 2, 6);
+    let l = common::brook_evans_arl(1.88, 1, 2, 6);
     assert!(
         (l[0] - 37.2).abs() < 0.05 && (l[3] - 29.19).abs() < 0.005,
         "{l:?}"
     );
     let shifted = 1.88 + 0.9627 * 1.88_f64.sqrt();
-    let l = brook_evans_arl(shifted, 1, 2, 6);
+    let l = common::brook_evans_arl(shifted, 1, 2, 6);
     assert!(
         (l[0] - 5.49).abs() < 0.005 && (l[3] - 3.33).abs() < 0.005,
         "{l:?}"
     );
     // Reference notes §4.2 design table (COMP, Brook & Evans 1972): k = 6, h = 8.
-    assert!((brook_evans_arl(4.0, 1, 6, 8)[0] - 1736.05).abs() < 0.01);
-    assert!((brook_evans_arl(8.0, 1, 6, 8)[0] - 4.576).abs() < 0.001);
+    assert!((common::brook_evans_arl(4.0, 1, 6, 8)[0] - 1736.05).abs() < 0.01);
+    assert!((common::brook_evans_arl(8.0, 1, 6, 8)[0] - 4.576).abs() < 0.001);
     // Lattice 1/2: k = 1.5, h = 5 for means 1 and 2: 273.65 / 9.438, FIR 6.217.
-    assert!((brook_evans_arl(1.0, 2, 3, 10)[0] - 273.65).abs() < 0.01);
-    let l = brook_evans_arl(2.0, 2, 3, 10);
+    assert!((common::brook_evans_arl(1.0, 2, 3, 10)[0] - 273.65).abs() < 0.01);
+    let l = common::brook_evans_arl(2.0, 2, 3, 10);
     assert!((l[0] - 9.438).abs() < 0.001 && (l[5] - 6.217).abs() < 0.001);
 }
 

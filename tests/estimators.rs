@@ -58,13 +58,13 @@ proptest! {
         let mut history: Vec<u32> = Vec::new(); // counts per tick, oldest first
         let mut t = 0u32;
         for (dt, c) in steps {
-            for _ in 1..dt.max(1) { history.push(0); }
+            history.extend(std::iter::repeat_n(0, dt.max(1) as usize - 1));
             if dt == 0 && !history.is_empty() { *history.last_mut().unwrap() += c; } else { history.push(c); }
             t += dt;
             let seen = r.add(Ticks(t), c);
             if r.needs_refresh() { r.refresh(alpha).unwrap(); }
             let len = r.averaging_ticks() as usize;
-            prop_assert!(len >= 1 && len <= 64 && len <= history.len());
+            prop_assert!((1..=64).contains(&len) && len <= history.len());
             let naive: u64 = history[history.len() - len..].iter().map(|&v| u64::from(v)).sum();
             prop_assert_eq!(r.averaging_counts(), naive);
             if seen != StepSeen::None { prop_assert_eq!(len, 2.min(history.len())); }

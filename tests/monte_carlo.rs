@@ -15,7 +15,6 @@ use countward::detect::{
 use countward::fixed::{FixedAlpha, FixedMean};
 use countward::plan::{sliding_threshold, sliding_upcrossings_per_tick};
 use countward::poisson::at_least;
-use statrs::distribution::{Discrete, Poisson};
 
 const BACKGROUND_CPS: f64 = 2.0;
 const WINDOW: usize = 10;
@@ -198,45 +197,16 @@ fn the_learning_chain_keeps_its_false_alarm_plan_and_detects_a_source() {
     );
 }
 
-/// Brook & Evans (1972) zero-start ARL on the lattice (independent f64 reference).
-fn brook_evans_arl0(mean: f64, scale: u32, reference: u32, decision: u32) -> f64 {
-    let d = Poisson::new(mean).unwrap();
-    let n = decision as usize;
-    let mut a = vec![vec![0.0; n + 1]; n];
-    for (i, row) in a.iter_mut().enumerate() {
-        row[i] += 1.0;
-        row[n] = 1.0;
-        let mut x = 0i64;
-        loop {
-            let next = (i as i64 + i64::from(scale) * x - i64::from(reference)).max(0);
-            if next >= n as i64 {
-                break;
-            }
-            row[next as usize] -= d.pmf(x as u64);
-            x += 1;
-        }
-    }
-    for c in 0..n {
-        for r in 0..n {
-            if r != c {
-                let f = a[r][c] / a[c][c];
-                for k in c..=n {
-                    a[r][k] -= f * a[c][k];
-                }
-            }
-        }
-    }
-    a[0][n] / a[0][0]
-}
-
 #[test]
 fn cusum_false_alarms_per_hour_and_delay_match_brook_evans() {
     let seed = common::seed(0x5eed_0203);
     let mut rng = common::rng(seed);
     // 1 s ticks, background 2 counts per tick, designed for 6 per tick; h = 4.
     let config = CusumConfig::for_means(2.0_f64, 6.0, 4.0, 4, false).unwrap();
-    let arl0 = brook_evans_arl0(2.0, config.scale(), config.reference(), config.decision());
-    let arl1 = brook_evans_arl0(6.0, config.scale(), config.reference(), config.decision());
+    let arl0 =
+        common::brook_evans_arl(2.0, config.scale(), config.reference(), config.decision())[0];
+    let arl1 =
+        common::brook_evans_arl(6.0, config.scale(), config.reference(), config.decision())[0];
     let ticks = (hours(20.0) * 3600.0) as u32;
     let mut c = PoissonCusum::new(config);
     let mut signals = 0u64;

@@ -45,3 +45,44 @@ pub fn assert_close(what: &str, seed: u64, observed: f64, expected: f64, sd: f64
         "{what}: observed {observed}, expected {expected} ± {z}·{sd} (seed {seed}; rerun with COUNTWARD_SEED={seed})"
     );
 }
+
+/// Brook & Evans (1972): the average run length of a Poisson CUSUM on a
+/// lattice of `1/scale` counts ("signal when S ≥ h"), from every start state
+/// `0..decision`: solves `(I − R) L = 1` for the sub-stochastic transition
+/// matrix `R` by Gauss–Jordan elimination with partial pivoting, using
+/// statrs' Poisson pmf. An independent f64 reference for the tests.
+pub fn brook_evans_arl(mean: f64, scale: u32, reference: u32, decision: u32) -> Vec<f64> {
+    use statrs::distribution::{Discrete, Poisson};
+    let d = Poisson::new(mean).unwrap();
+    let n = decision as usize;
+    let mut a = vec![vec![0.0; n + 1]; n];
+    for (i, row) in a.iter_mut().enumerate() {
+        row[i] += 1.0;
+        row[n] = 1.0;
+        let mut x = 0u64;
+        loop {
+            let next = (i as i64 + i64::from(scale) * x as i64 - i64::from(reference)).max(0);
+            if next >= n as i64 {
+                break;
+            }
+            row[next as usize] -= d.pmf(x);
+            x += 1;
+        }
+    }
+    for c in 0..n {
+        let p = (c..n)
+            .max_by(|&i, &j| a[i][c].abs().total_cmp(&a[j][c].abs()))
+            .unwrap();
+        a.swap(c, p);
+        let pivot = a[c].clone();
+        for (r, row) in a.iter_mut().enumerate() {
+            if r != c {
+                let f = row[c] / pivot[c];
+                for (v, p) in row.iter_mut().zip(&pivot).skip(c) {
+                    *v -= f * p;
+                }
+            }
+        }
+    }
+    (0..n).map(|i| a[i][n] / a[i][i]).collect()
+}
