@@ -179,7 +179,7 @@ fn the_learning_chain_keeps_its_false_alarm_plan_and_detects_a_source() {
     // window count itself reaches the threshold with probability ≥ 1/2, plus
     // one tick of persistence.
     let half_by = (1..=WINDOW as u32)
-        .chain(std::iter::repeat(WINDOW as u32).take(50))
+        .chain(std::iter::repeat_n(WINDOW as u32, 50))
         .enumerate()
         .find(|&(_, d)| {
             let mean = BACKGROUND_CPS * WINDOW as f64 + source_cps * f64::from(d);
