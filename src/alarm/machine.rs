@@ -59,8 +59,8 @@ impl AlarmConfig {
 ///   cleared with its own persistence and latched like the level.
 /// * **Events**: a queue of `Q` entries; overflow is counted, never silent.
 ///
-/// Per tick: a few compares per level and fault, O(1). Memory: 32 bytes
-/// plus 12 per queue entry (asserted in the tests).
+/// Per tick: a few compares per level and fault, O(1). Memory on 32-bit
+/// targets: 44 bytes plus 8 per queue entry (asserted on the Cortex-M0 target).
 ///
 /// ```
 /// use countward::alarm::{AlarmConfig, AlarmMachine, EventKind, Faults, Level};

@@ -107,7 +107,7 @@ impl SprtConfig {
 /// Per tick: one multiply and two adds on `i64`, two compares. Because the
 /// ratio crosses the upper boundary by jumps, the real false-alarm
 /// probability per test is below the nominal α (about 0.039 for a nominal
-/// 0.05 in the published example; see the tests). Memory: 48 bytes.
+/// 0.05 in the published example; see the tests). Memory: 56 bytes.
 ///
 /// ```
 /// use countward::detect::{Sprt, SprtConfig, SprtDecision};

@@ -30,6 +30,11 @@ use crate::ticks::Ticks;
 /// Until the window is full or while no thresholds are in force, `tick`
 /// returns [`Classification::QUIET`] and [`WindowDetector::is_armed`] is false.
 ///
+/// Memory: `4 N + 88` bytes on 32-bit targets. Per tick on a Cortex-M0, the
+/// whole firmware chain (this detector, the alarm machine, a saturation guard,
+/// a CUSUM and an adaptive rate) takes about 840 instructions on average
+/// (`tests/firmware`, measured under QEMU).
+///
 /// ```
 /// use countward::detect::{Level, ThresholdPlan, WindowDetector};
 /// use countward::fixed::{FixedAlpha, FixedMean};

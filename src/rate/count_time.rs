@@ -21,7 +21,7 @@ use crate::ticks::Ticks;
 /// have the resolution of one tick; a span of 0 ticks (all events in one
 /// tick) reads as 1 tick. Readings need `n ≥ 3`, otherwise `None`.
 ///
-/// Cost: O(1) per event. Memory: `4 N + 16` bytes on 32-bit targets.
+/// Cost: O(1) per event. Memory: `4 N + 8` bytes on 32-bit targets.
 ///
 /// ```
 /// use countward::rate::TimeToCount;

@@ -9,10 +9,11 @@
 //! |---|---|---|
 //! | [`BinWindow`] | `4 N + 24` bytes | alarms on the counts in the last `N` ticks |
 //! | [`SmoothedRate`] | 16 bytes | a steady display, the digital RC ratemeter |
-//! | [`AdaptiveRate`] | `4 N + 80` bytes | a display that is smooth at background and follows steps within seconds |
-//! | [`TimeToCount`] | `4 N + 16` bytes | very low rates: time taken by the last `N - 1` gaps |
+//! | [`AdaptiveRate`] | `4 N + 88` bytes | a display that is smooth at background and follows steps within seconds |
+//! | [`TimeToCount`] | `4 N + 8` bytes | very low rates: time taken by the last `N - 1` gaps |
 //!
-//! (Sizes on 32-bit targets, asserted in the tests.)
+//! (Sizes on 32-bit targets for even `N`, asserted at compile time by the
+//! Cortex-M0 check binary `tests/firmware/src/bin/chain.rs`.)
 
 mod adaptive;
 mod count_time;
