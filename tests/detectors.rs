@@ -267,3 +267,50 @@ fn window_background_is_frozen_during_an_excess_and_a_low_count_fault() {
         "floor above background"
     );
 }
+
+mod properties {
+    use countward::Ticks;
+    use countward::detect::{CusumConfig, CusumDirection, PoissonCusum, SilenceFleet, SilencePlan};
+    use countward::ticks::NextDeadline;
+    use proptest::prelude::*;
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(300))]
+
+        // The scaled-integer CUSUM equals Page's recursion in f64 on the same lattice.
+        #[test]
+        fn cusum_equals_the_f64_recursion(scale in 1u32..64, k in 1u32..400, h in 1u32..2000,
+                                          up in any::<bool>(), xs in prop::collection::vec(0u32..50, 1..300)) {
+            let dir = if up { CusumDirection::Increase } else { CusumDirection::Decrease };
+            let mut c = PoissonCusum::new(CusumConfig::new(scale, k, h, 0, dir).unwrap());
+            let (kf, hf, sf) = (f64::from(k) / f64::from(scale), f64::from(h) / f64::from(scale), f64::from(scale));
+            let mut s = 0.0_f64;
+            for x in xs {
+                let step = if up { f64::from(x) - kf } else { kf - f64::from(x) };
+                s = (s + step).max(0.0);
+                let signal = s >= hf - 0.5 / sf / 1e6;
+                if signal { s = 0.0; }
+                prop_assert_eq!(c.update(x), signal);
+                prop_assert!((f64::from(c.statistic()) / sf - s).abs() < 1e-9);
+            }
+        }
+
+        // The fleet's next deadline is one tick after the earliest unreported deadline.
+        #[test]
+        fn fleet_deadline_is_the_naive_minimum(events in prop::collection::vec((0usize..8, 1u32..500), 1..200)) {
+            let plan = SilencePlan::<8>::new(1e-3_f64, 2, 10_000).unwrap();
+            let mut fleet = SilenceFleet::<8, 8>::new(plan);
+            let mut now = 1_000u32;
+            for (device, dt) in events {
+                now += dt;
+                fleet.event(device, Ticks(now)).unwrap();
+                let naive = (0..8)
+                    .filter_map(|i| fleet.slot(i).and_then(|s| s.deadline()))
+                    .map(|d| d.0)
+                    .min()
+                    .map(|d| Ticks(d + 1));
+                prop_assert_eq!(fleet.next_deadline(), naive);
+            }
+        }
+    }
+}

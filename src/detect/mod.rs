@@ -23,6 +23,8 @@ mod window;
 pub use cusum::{CusumConfig, CusumDirection, PoissonCusum};
 pub use level::{Classification, Level, LevelThresholds, ThresholdPlan};
 pub use saturation::SaturationGuard;
-pub use silence::{DeviceSlot, SilenceFleet, SilencePlan, SilenceState, SilenceWatcher};
+pub use silence::{
+    DeviceSlot, MAX_DELAY_TICKS, SilenceFleet, SilencePlan, SilenceState, SilenceWatcher,
+};
 pub use sprt::{Sprt, SprtConfig, SprtDecision};
 pub use window::WindowDetector;

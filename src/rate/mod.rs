@@ -22,7 +22,7 @@ mod window;
 
 pub use adaptive::{AdaptiveConfig, AdaptiveRate, StepSeen};
 pub use count_time::TimeToCount;
-pub use smoothed::SmoothedRate;
+pub use smoothed::{MAX_SHIFT, SmoothedRate};
 pub use window::BinWindow;
 
 use crate::error::{Error, Param, check_open_unit, check_range};
