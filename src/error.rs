@@ -37,6 +37,8 @@ pub enum Param {
     Fraction,
     /// A target number of counts.
     TargetCounts,
+    /// Input data (a series of measurements or time stamps).
+    Data,
 }
 
 impl Param {
@@ -58,6 +60,7 @@ impl Param {
             Param::DeadTime => "dead_time_s",
             Param::Fraction => "fraction",
             Param::TargetCounts => "target_counts",
+            Param::Data => "data",
         }
     }
 }
@@ -75,13 +78,16 @@ pub enum Error {
     /// defect in the library (the documented domain should always converge);
     /// the call reports it rather than return a partial result.
     NoConvergence,
+    /// The data are valid but cannot determine the named quantity (too few
+    /// counts or points, or an effect too small to show above the noise).
+    NotDetermined(Param),
 }
 
 impl Error {
     /// The input at fault, if any.
     pub const fn param(self) -> Option<Param> {
         match self {
-            Error::NotFinite(p) | Error::OutOfRange(p) => Some(p),
+            Error::NotFinite(p) | Error::OutOfRange(p) | Error::NotDetermined(p) => Some(p),
             Error::NoConvergence => None,
         }
     }
@@ -93,6 +99,7 @@ impl fmt::Display for Error {
             Error::NotFinite(p) => write!(f, "{} is not a finite number", p.name()),
             Error::OutOfRange(p) => write!(f, "{} is outside its allowed range", p.name()),
             Error::NoConvergence => f.write_str("iteration did not converge (please report)"),
+            Error::NotDetermined(p) => write!(f, "the data cannot determine {}", p.name()),
         }
     }
 }

@@ -7,6 +7,7 @@
 extern crate std;
 
 pub mod alarm;
+pub mod deadtime;
 pub mod detect;
 pub mod error;
 pub mod fixed;
