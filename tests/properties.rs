@@ -224,6 +224,19 @@ proptest! {
         }
     }
 
+    /// Near the branch point: x = w eʷ for w within 0.2 of −1 on either side
+    /// (found by the dead-time properties: Halley used to cycle at the last
+    /// ulps at x = −0.365 and report NoConvergence).
+    #[test]
+    fn lambert_w_near_the_branch_point(d in 1e-6f64..0.2, upper in any::<bool>()) {
+        let w = if upper { -1.0 + d } else { -1.0 - d };
+        let x = w * w.exp();
+        let got = if upper { lambert_w0(x) } else { lambert_wm1(x) }.unwrap();
+        // Conditioning: dW/dx = W/(x(1+W)); the input rounding of x alone
+        // moves W by about ε/(e·d).
+        prop_assert!((got - w).abs() <= 8.0 * f64::EPSILON / d + 1e-15, "w {} got {}", w, got);
+    }
+
     /// No input makes a call panic: bad input is an error, good input a number.
     #[test]
     fn no_panics(m in proptest::num::f64::ANY, a in proptest::num::f64::ANY, k in proptest::num::u32::ANY) {

@@ -14,8 +14,9 @@ pub struct TwoSource<F> {
     /// Its standard uncertainty from counting statistics (when the counting
     /// time is known).
     pub std_uncertainty_s: Option<F>,
-    /// The first-order approximation with background,
-    /// `(m1 + m2 − m12 − mb) / (2 (m1 m2 − mb m12))`.
+    /// The small-loss approximation with background (from `n ≈ m (1 + mτ)`),
+    /// `(m1 + m2 − m12 − mb)/(m12² + mb² − m1² − m2²)`; meaningless at large
+    /// losses (it can even exceed the exact τ several times).
     pub first_order_s: F,
     /// The common approximation without background, `(m1 + m2 − m12)/(2 m1 m2)`.
     pub simple_s: F,
@@ -43,8 +44,10 @@ fn two_source_exact<F: Real>(m1: F, m2: F, m12: F, mb: F) -> Option<F> {
 /// Exact solution (Knoll 2010, ch. 4): with `X = m1 m2 − mb m12`,
 /// `Y = m1 m2 (m12 + mb) − mb m12 (m1 + m2)`, `Z = Y (m1 + m2 − m12 − mb)/X²`,
 /// `τ = X (1 − √(1 − Z))/Y`. When `seconds` (the counting time of each of the
-/// four measurements) is given, the uncertainty of τ is propagated from
-/// `Var(m) = m/t` by numerical derivatives, and a τ smaller than twice its
+/// four measurements) is given, the uncertainty of τ is propagated by
+/// numerical derivatives from the variance of a rate recorded behind a
+/// non-paralyzable dead time, `Var(m) = m (1 − mτ)²/t` (Müller 1973; plain
+/// Poisson `m/t` would overstate it by up to 4× at 50% losses), and a τ smaller than twice its
 /// uncertainty is [`Error::NotDetermined`]. Data without a real solution
 /// (no loss, `Z > 1`) are `NotDetermined` too.
 ///
@@ -71,7 +74,7 @@ pub fn two_source<F: Real>(
         None => None,
     };
     let tau = two_source_exact(m1, m2, m12, mb).ok_or(Error::NotDetermined(Param::DeadTime))?;
-    let first_order = (m1 + m2 - m12 - mb) / (F::TWO * (m1 * m2 - mb * m12));
+    let first_order = (m1 + m2 - m12 - mb) / (m12 * m12 + mb * mb - m1 * m1 - m2 * m2);
     let simple = (m1 + m2 - m12) / (F::TWO * m1 * m2);
     let std_uncertainty_s = match t {
         None => None,
@@ -94,7 +97,8 @@ pub fn two_source<F: Real>(
                     return Err(Error::NotDetermined(Param::DeadTime));
                 };
                 let d = (tu - td) / (F::TWO * h);
-                var += d * d * rates[i] / t;
+                let live = F::ONE - rates[i] * tau;
+                var += d * d * rates[i] * live * live / t;
             }
             let sd = var.sqrt();
             if tau < F::TWO * sd {
@@ -155,15 +159,22 @@ impl<F: Real> DecayFit<F> {
         self.model.measured_cps(n).unwrap_or(F::ZERO)
     }
 
-    /// The standardized residual of a point: `(m − fit)/σ`, with σ from its
-    /// counting time, or relative (`√m`, scaled by the fit's scatter).
+    /// The standardized residual of a point: `(m − fit)/σ`, with σ from the
+    /// fit's weights (scaled by the scatter when they were relative).
     pub fn residual(&self, p: &DecayPoint<F>) -> F {
-        let fit = self.predicted_cps(p.time_s);
-        let var = match p.counting_s {
-            Some(t) if self.weighted_by_counts => p.measured_cps / t,
-            _ => p.measured_cps * self.chi2 / F::of_u32(self.dof.max(1)),
+        let w = VarianceModel {
+            model: self.model,
+            n0: self.initial_cps,
+            lambda: self.decay_per_s,
+            weighted: self.weighted_by_counts,
+        }
+        .weight(p);
+        let scale = if self.weighted_by_counts {
+            F::ONE
+        } else {
+            self.chi2 / F::of_u32(self.dof.max(1))
         };
-        (p.measured_cps - fit) / var.sqrt()
+        (p.measured_cps - self.predicted_cps(p.time_s)) * (w / scale).sqrt()
     }
 }
 
@@ -174,8 +185,10 @@ impl<F: Real> DecayFit<F> {
 /// Method: the linearizations of Knoll (2010, ch. 4) give the start —
 /// non-paralyzable `m e^{λt} = n0 − n0 τ m`, paralyzable
 /// `λt + ln m = ln n0 − n0 τ e^{−λt}` — then weighted least squares of the
-/// measured rates (Levenberg–Marquardt on `(n0, τ)`), weights `t_i/m_i`
-/// (Poisson) when every point has its counting time, `1/m_i` otherwise.
+/// measured rates (Levenberg–Marquardt on `(n0, τ)`, three passes of
+/// reweighting), weights `1/Var(m_i)` with the variance of a count recorded
+/// behind the model's dead time (Müller 1973) when every point has its
+/// counting time, `1/m_i` otherwise.
 /// Uncertainties from the inverse normal matrix (scaled by `χ²/dof` in the
 /// second case). Needs at least 3 points; a τ not larger than twice its
 /// uncertainty is [`Error::NotDetermined`] (the losses are too small to show).
@@ -221,12 +234,94 @@ pub fn fit_decay<F: Real>(
     }
     let weighted = with_time == points.len();
     let lambda = F::of(core::f64::consts::LN_2) / half;
-    let weight = |p: &DecayPoint<F>| match p.counting_s {
-        Some(t) if weighted => t / p.measured_cps,
-        _ => F::ONE / p.measured_cps,
-    };
     let (n0, tau) = linear_start(points, lambda, kind == ModelKind::Paralyzable);
     let model_at = |tau: F| DeadTime::of_kind(kind, tau, paralyzable_fraction);
+    // Iteratively reweighted: the weights use the variance of a recorded
+    // count at the current estimate; three passes settle them.
+    let mut fitted = (n0, tau);
+    let mut last = None;
+    for _ in 0..3 {
+        let weights = VarianceModel {
+            model: model_at(fitted.1)?,
+            n0: fitted.0,
+            lambda,
+            weighted,
+        };
+        let fit = levenberg_marquardt(points, lambda, fitted, &weights, &model_at)?;
+        fitted = (fit.0, fit.1);
+        last = Some((fit, weights));
+    }
+    let ((n0, tau, chi2, normal), _) = last.ok_or(Error::NoConvergence)?;
+    let dof = points.len() as u32 - 2;
+    let scale = if weighted {
+        F::ONE
+    } else {
+        chi2 / F::of_u32(dof)
+    };
+    let det = normal[0][0] * normal[1][1] - normal[0][1] * normal[1][0];
+    if !(det > F::ZERO) {
+        return Err(Error::NotDetermined(Param::DeadTime));
+    }
+    let var_n0 = normal[1][1] / det * scale;
+    let var_tau = normal[0][0] / det * scale;
+    let (sd_n0, sd_tau) = (var_n0.sqrt(), var_tau.sqrt());
+    if !(tau > F::TWO * sd_tau) {
+        return Err(Error::NotDetermined(Param::DeadTime));
+    }
+    Ok(DecayFit {
+        model: model_at(tau)?,
+        dead_time_s: tau,
+        dead_time_sd_s: sd_tau,
+        initial_cps: n0,
+        initial_sd_cps: sd_n0,
+        chi2,
+        dof,
+        weighted_by_counts: weighted,
+        decay_per_s: lambda,
+    })
+}
+
+/// Weights of the decay fit: `1/Var(m_i)`, with the variance of a count
+/// recorded behind the dead time (as in
+/// [`DeadTime::correct_with_uncertainty`]) when counting times are known,
+/// else relative weights `1/m_i`.
+struct VarianceModel<F> {
+    model: DeadTime<F>,
+    n0: F,
+    lambda: F,
+    weighted: bool,
+}
+
+impl<F: Real> VarianceModel<F> {
+    fn weight(&self, p: &DecayPoint<F>) -> F {
+        let m = p.measured_cps;
+        let Some(t) = p.counting_s.filter(|_| self.weighted) else {
+            return F::ONE / m;
+        };
+        let tau = self.model.tau_s();
+        let n = self.n0 * (-self.lambda * p.time_s).exp();
+        let factor = match self.model.kind() {
+            ModelKind::NonParalyzable => (F::ONE - m * tau) * (F::ONE - m * tau),
+            ModelKind::Paralyzable => F::ONE - F::TWO * n * tau * (-n * tau).exp(),
+            ModelKind::Hybrid => F::ONE,
+        };
+        let floor = F::of(1e-3);
+        t / (m * if factor > floor { factor } else { floor })
+    }
+}
+
+type Normal<F> = [[F; 2]; 2];
+
+/// Levenberg–Marquardt on `(n0, τ)` with Marquardt's diagonal scaling and
+/// fixed weights; returns the estimate, its χ² and the normal matrix.
+fn levenberg_marquardt<F: Real>(
+    points: &[DecayPoint<F>],
+    lambda: F,
+    start: (F, F),
+    weights: &VarianceModel<F>,
+    model_at: &dyn Fn(F) -> Result<DeadTime<F>, Error>,
+) -> Result<(F, F, F, Normal<F>), Error> {
+    let weight = |p: &DecayPoint<F>| weights.weight(p);
     let chi2_at = |n0: F, tau: F| -> Result<F, Error> {
         let m = model_at(tau)?;
         let mut s = F::ZERO;
@@ -237,8 +332,7 @@ pub fn fit_decay<F: Real>(
         }
         Ok(s)
     };
-    // Levenberg–Marquardt on (n0, τ) with Marquardt's diagonal scaling.
-    let (mut n0, mut tau) = (n0, tau);
+    let (mut n0, mut tau) = start;
     let mut chi2 = chi2_at(n0, tau)?;
     let mut mu = F::of(1e-3);
     let mut normal = [[F::ZERO; 2]; 2];
@@ -292,29 +386,7 @@ pub fn fit_decay<F: Real>(
             break;
         }
     }
-    let dof = points.len() as u32 - 2;
-    let scale = if weighted { F::ONE } else { chi2 / F::of_u32(dof) };
-    let det = normal[0][0] * normal[1][1] - normal[0][1] * normal[1][0];
-    if !(det > F::ZERO) {
-        return Err(Error::NotDetermined(Param::DeadTime));
-    }
-    let var_n0 = normal[1][1] / det * scale;
-    let var_tau = normal[0][0] / det * scale;
-    let (sd_n0, sd_tau) = (var_n0.sqrt(), var_tau.sqrt());
-    if !(tau > F::TWO * sd_tau) {
-        return Err(Error::NotDetermined(Param::DeadTime));
-    }
-    Ok(DecayFit {
-        model: model_at(tau)?,
-        dead_time_s: tau,
-        dead_time_sd_s: sd_tau,
-        initial_cps: n0,
-        initial_sd_cps: sd_n0,
-        chi2,
-        dof,
-        weighted_by_counts: weighted,
-        decay_per_s: lambda,
-    })
+    Ok((n0, tau, chi2, normal))
 }
 
 /// Start values from a straight-line fit (weighted by the measured rate):
@@ -324,7 +396,10 @@ fn linear_start<F: Real>(points: &[DecayPoint<F>], lambda: F, paralyzable: bool)
     let (mut sw, mut sx, mut sy, mut sxx, mut sxy) = (F::ZERO, F::ZERO, F::ZERO, F::ZERO, F::ZERO);
     for p in points {
         let (x, y) = if paralyzable {
-            ((-lambda * p.time_s).exp(), lambda * p.time_s + p.measured_cps.ln())
+            (
+                (-lambda * p.time_s).exp(),
+                lambda * p.time_s + p.measured_cps.ln(),
+            )
         } else {
             (p.measured_cps, p.measured_cps * (lambda * p.time_s).exp())
         };
@@ -337,12 +412,30 @@ fn linear_start<F: Real>(points: &[DecayPoint<F>], lambda: F, paralyzable: bool)
     }
     let slope = (sw * sxy - sx * sy) / (sw * sxx - sx * sx);
     let intercept = (sy - slope * sx) / sw;
-    let n0 = if paralyzable { intercept.exp() } else { intercept };
-    let n_max = points.iter().fold(F::ZERO, |a, p| if p.measured_cps > a { p.measured_cps } else { a });
-    let n0 = if n0.is_finite() && n0 >= n_max { n0 } else { n_max * F::of(1.01) };
+    let n0 = if paralyzable {
+        intercept.exp()
+    } else {
+        intercept
+    };
+    let n_max = points.iter().fold(F::ZERO, |a, p| {
+        if p.measured_cps > a {
+            p.measured_cps
+        } else {
+            a
+        }
+    });
+    let n0 = if n0.is_finite() && n0 >= n_max {
+        n0
+    } else {
+        n_max * F::of(1.01)
+    };
     let tau = -slope / n0;
     let floor = F::of(1e-3) / n0;
-    let tau = if tau.is_finite() && tau > floor { tau } else { floor };
+    let tau = if tau.is_finite() && tau > floor {
+        tau
+    } else {
+        floor
+    };
     (n0, tau)
 }
 
@@ -437,7 +530,11 @@ pub fn fit_intervals<F: Real>(timestamps_s: &[F]) -> Result<IntervalFit<F>, Erro
     let mut counts = [0u32; 10];
     for w in timestamps_s.windows(2) {
         let u = (w[1] - w[0] - tau) * rate; // Exp(1) under the model
-        let cdf = if u > F::ZERO { F::ONE - (-u).exp() } else { F::ZERO };
+        let cdf = if u > F::ZERO {
+            F::ONE - (-u).exp()
+        } else {
+            F::ZERO
+        };
         let b = (cdf * F::of_u32(bins as u32)).floor().to_u32_saturating() as usize;
         counts[b.min(bins - 1)] += 1;
     }

@@ -73,7 +73,11 @@ impl<F: Real> DeadTime<F> {
     fn checked(kind: ModelKind, tau_s: F, fraction: F) -> Result<Self, Error> {
         let tau_s = check_range(tau_s, F::MIN_POSITIVE, F::of(1e3), Param::DeadTime)?;
         let fraction = check_range(fraction, F::ZERO, F::ONE, Param::Fraction)?;
-        Ok(DeadTime { kind, tau_s, fraction })
+        Ok(DeadTime {
+            kind,
+            tau_s,
+            fraction,
+        })
     }
 
     /// A non-paralyzable dead time of `tau_s` seconds.
@@ -122,7 +126,10 @@ impl<F: Real> DeadTime<F> {
         match self.kind {
             ModelKind::NonParalyzable => (F::ZERO, self.tau_s),
             ModelKind::Paralyzable => (self.tau_s, F::ZERO),
-            ModelKind::Hybrid => (self.fraction * self.tau_s, (F::ONE - self.fraction) * self.tau_s),
+            ModelKind::Hybrid => (
+                self.fraction * self.tau_s,
+                (F::ONE - self.fraction) * self.tau_s,
+            ),
         }
     }
 
@@ -135,6 +142,12 @@ impl<F: Real> DeadTime<F> {
     pub(crate) fn log_slope(&self, n: F) -> F {
         let (a, b) = self.parts();
         F::ONE - n * a - n * b / (F::ONE + n * b)
+    }
+
+    /// `d ln m / d ln n` at true rate `n` (1 at low rates, 0 at the peak,
+    /// negative beyond it): the inverse of the correction's gain.
+    pub fn log_slope_for_tests(&self, n: F) -> F {
+        self.log_slope(n)
     }
 
     /// `∂ ln m / ∂ τ` at fixed true rate `n` (τ scaled with f fixed).
@@ -209,7 +222,11 @@ impl<F: Real> DeadTime<F> {
             ModelKind::Hybrid => self.hybrid_inverse(m)?,
         };
         let slope = self.log_slope(low);
-        let gain = if slope > F::ZERO { F::ONE / slope } else { F::INFINITY };
+        let gain = if slope > F::ZERO {
+            F::ONE / slope
+        } else {
+            F::INFINITY
+        };
         Ok(Correction {
             true_cps: low,
             true_cps_high: high,
@@ -275,7 +292,9 @@ impl<F: Real> DeadTime<F> {
             } else {
                 (lo + hi) * F::HALF
             };
-            if (next - n).abs() <= F::EPSILON * F::of(4.0) * n || hi - lo <= F::EPSILON * F::of(4.0) * hi {
+            if (next - n).abs() <= F::EPSILON * F::of(4.0) * n
+                || hi - lo <= F::EPSILON * F::of(4.0) * hi
+            {
                 return Ok(next);
             }
             n = next;

@@ -96,7 +96,10 @@ impl<const N: usize> CorrectionTable<N> {
                 }
             }
         }
-        let ppm = (worst * F::of(1e6)).floor().to_u32_saturating().saturating_add(1);
+        let ppm = (worst * F::of(1e6))
+            .floor()
+            .to_u32_saturating()
+            .saturating_add(1);
         Ok(CorrectionTable {
             gain_q24,
             position_per_count_q32,
@@ -105,7 +108,11 @@ impl<const N: usize> CorrectionTable<N> {
     }
 
     /// A table from stored parts (as returned by [`CorrectionTable::parts`]).
-    pub const fn from_parts(gain_q24: [u32; N], position_per_count_q32: u64, error_bound_ppm: u32) -> Self {
+    pub const fn from_parts(
+        gain_q24: [u32; N],
+        position_per_count_q32: u64,
+        error_bound_ppm: u32,
+    ) -> Self {
         CorrectionTable {
             gain_q24,
             position_per_count_q32,
@@ -116,7 +123,11 @@ impl<const N: usize> CorrectionTable<N> {
     /// The stored parts: factors (UQ8.24), the grid position per count
     /// (Q32), and the error bound in ppm.
     pub const fn parts(&self) -> (&[u32; N], u64, u32) {
-        (&self.gain_q24, self.position_per_count_q32, self.error_bound_ppm)
+        (
+            &self.gain_q24,
+            self.position_per_count_q32,
+            self.error_bound_ppm,
+        )
     }
 
     /// The measured relative error bound of the factor, parts per million.

@@ -57,9 +57,17 @@ impl<F: Real> DeadTime<F> {
             ModelKind::Hybrid => m / t,
         };
         let var_m = if var_m > F::ZERO { var_m } else { F::ZERO };
-        let from_counts = if m > F::ZERO { c.gain * (n / m) * var_m.sqrt() } else { F::ZERO };
+        let from_counts = if m > F::ZERO {
+            c.gain * (n / m) * var_m.sqrt()
+        } else {
+            F::ZERO
+        };
         // ∂n/∂τ = −(∂ ln m/∂τ) / (∂ ln m/∂n), with ∂ ln m/∂n = slope/n.
-        let dn_dtau = if n > F::ZERO { -self.log_tau_slope(n) * n * c.gain } else { F::ZERO };
+        let dn_dtau = if n > F::ZERO {
+            -self.log_tau_slope(n) * n * c.gain
+        } else {
+            F::ZERO
+        };
         let from_tau = (dn_dtau * sd_tau).abs();
         if m > F::ZERO && !(from_counts.is_finite() && from_tau.is_finite()) {
             return Err(Error::OutOfRange(Param::RateCps));

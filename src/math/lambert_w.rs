@@ -48,13 +48,18 @@ fn branch_series<F: Real>(p: F) -> F {
     w
 }
 
-/// Halley's iteration on f(w) = w eʷ - x.
+/// Halley's iteration on f(w) = w eʷ - x. Stops when the step is below 4ε,
+/// when the residual is down to its rounding noise (near the branch point
+/// f'(w) → 0 and that noise alone moves w by more than 4ε), or when a step
+/// stops shrinking (cycling at the last ulps).
 fn halley<F: Real>(x: F, mut w: F) -> Result<F, Error> {
+    let mut last_step = F::INFINITY;
     for _ in 0..MAX_STEPS {
         let ew = w.exp();
         let f = w * ew - x;
         let w1 = w + F::ONE;
-        if w1 == F::ZERO || f == F::ZERO {
+        let noise = F::of(2.0) * F::EPSILON * (x.abs() + (w * ew).abs());
+        if w1 == F::ZERO || f.abs() <= noise {
             return Ok(w);
         }
         let denom = ew * w1 - (w + F::TWO) * f / (F::TWO * w1);
@@ -62,6 +67,10 @@ fn halley<F: Real>(x: F, mut w: F) -> Result<F, Error> {
             return Ok(w);
         }
         let step = f / denom;
+        if step.abs() >= last_step && last_step <= F::EPSILON.sqrt() * at_least_one(w.abs()) {
+            return Ok(w);
+        }
+        last_step = step.abs();
         w -= step;
         if step.abs() <= F::of(4.0) * F::EPSILON * at_least_one(w.abs()) {
             return Ok(w);

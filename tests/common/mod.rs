@@ -86,3 +86,56 @@ pub fn brook_evans_arl(mean: f64, scale: u32, reference: u32, decision: u32) -> 
     }
     (0..n).map(|i| a[i][n] / a[i][i]).collect()
 }
+
+/// Time stamps (s) recorded in `[0, duration_s)` by a counter with dead time
+/// `tau_s` fed by a Poisson stream of `rate_cps`: non-paralyzable (arrivals
+/// within τ of the last *recorded* event are lost) or paralyzable (within τ
+/// of the last *arrival*, recorded or not).
+pub fn recorded_events(
+    rng: &mut SmallRng,
+    rate_cps: f64,
+    tau_s: f64,
+    duration_s: f64,
+    paralyzable: bool,
+) -> Vec<f64> {
+    let mut out = Vec::new();
+    let mut t = 0.0;
+    let mut dead_until = f64::NEG_INFINITY;
+    loop {
+        t += exponential(rng, rate_cps);
+        if t >= duration_s {
+            return out;
+        }
+        if t >= dead_until {
+            out.push(t);
+            dead_until = t + tau_s;
+        } else if paralyzable {
+            dead_until = t + tau_s;
+        }
+    }
+}
+
+/// The number of events such a counter records in `duration_s`.
+pub fn recorded_count(
+    rng: &mut SmallRng,
+    rate_cps: f64,
+    tau_s: f64,
+    duration_s: f64,
+    paralyzable: bool,
+) -> u64 {
+    let mut count = 0u64;
+    let mut t = 0.0;
+    let mut dead_until = f64::NEG_INFINITY;
+    loop {
+        t += exponential(rng, rate_cps);
+        if t >= duration_s {
+            return count;
+        }
+        if t >= dead_until {
+            count += 1;
+            dead_until = t + tau_s;
+        } else if paralyzable {
+            dead_until = t + tau_s;
+        }
+    }
+}
