@@ -365,22 +365,23 @@ fn levenberg_marquardt<F: Real>(
             let d0 = (jtr[0] * a11 - jtj[0][1] * jtr[1]) / det;
             let d1 = (a00 * jtr[1] - jtj[1][0] * jtr[0]) / det;
             let (n_new, t_new) = (n0 + d0, tau + d1);
-            if n_new > F::ZERO && t_new > F::ZERO {
-                if let Ok(c) = chi2_at(n_new, t_new) {
-                    if c <= chi2 {
-                        let small = (d0 / n0).abs() < F::EPSILON * F::of(16.0)
-                            && (d1 / tau).abs() < F::EPSILON * F::of(16.0);
-                        n0 = n_new;
-                        tau = t_new;
-                        let change = chi2 - c;
-                        chi2 = c;
-                        mu = mu / F::of(3.0);
-                        improved = !(small || change <= chi2 * F::EPSILON * F::of(4.0));
-                        break;
-                    }
-                }
+            let trial = if n_new > F::ZERO && t_new > F::ZERO {
+                chi2_at(n_new, t_new).ok()
+            } else {
+                None
+            };
+            if let Some(c) = trial.filter(|&c| c <= chi2) {
+                let small = (d0 / n0).abs() < F::EPSILON * F::of(16.0)
+                    && (d1 / tau).abs() < F::EPSILON * F::of(16.0);
+                n0 = n_new;
+                tau = t_new;
+                let change = chi2 - c;
+                chi2 = c;
+                mu /= F::of(3.0);
+                improved = !(small || change <= chi2 * F::EPSILON * F::of(4.0));
+                break;
             }
-            mu = mu * F::of(4.0);
+            mu *= F::of(4.0);
         }
         if !improved {
             break;

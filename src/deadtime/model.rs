@@ -258,7 +258,7 @@ impl<F: Real> DeadTime<F> {
         let mut hi = n_peak * F::TWO;
         let mut steps = 0;
         while self.forward(hi) > m {
-            hi = hi * F::TWO;
+            hi *= F::TWO;
             steps += 1;
             if steps > 2000 || !hi.is_finite() {
                 return Err(Error::NoConvergence);
