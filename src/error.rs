@@ -104,8 +104,7 @@ impl fmt::Display for Error {
     }
 }
 
-#[cfg(feature = "std")]
-impl std::error::Error for Error {}
+impl core::error::Error for Error {}
 
 /// Checks that `v` is finite and `lo <= v <= hi`.
 pub(crate) fn check_range<F: crate::Real>(v: F, lo: F, hi: F, p: Param) -> Result<F, Error> {

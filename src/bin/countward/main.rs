@@ -10,12 +10,16 @@ use countward::{Error, gap};
 use serde_json::{Value, json};
 use std::process::ExitCode;
 
+mod csv;
+mod deadtime;
+mod svg;
+
 const SAFETY: &str = "Safety: radiation alarms protect people. Settings computed here must be validated \
 for the instrument they run on, and local regulations and licensed radiation-protection practice take \
 precedence over anything this tool prints.";
 
 /// Counting statistics for Poisson event streams: tails, count thresholds,
-/// exact limits on a mean, and silence thresholds.
+/// exact limits on a mean, silence thresholds, and dead time.
 #[derive(Parser)]
 #[command(name = "countward", version, after_help = SAFETY)]
 struct Cli {
@@ -34,6 +38,9 @@ enum Command {
     Limits(LimitsArgs),
     /// Silence threshold: shortest time after which fewer than K events is improbable at alpha.
     Silence(SilenceArgs),
+    /// Dead time: correct measured rates, and measure τ on the bench.
+    #[command(subcommand, after_help = SAFETY)]
+    Deadtime(deadtime::DeadtimeCommand),
 }
 
 /// Which tier of the library computes the answer.
@@ -406,6 +413,7 @@ fn main() -> ExitCode {
         Command::Threshold(a) => (a.json, threshold(a)),
         Command::Limits(a) => (a.json, limits(a)),
         Command::Silence(a) => (a.json, silence(a)),
+        Command::Deadtime(c) => (deadtime::json_flag(&c), deadtime::run(c)),
     };
     match result {
         Ok((text, value)) => {
