@@ -39,6 +39,7 @@ pub struct Event {
 /// is not stored and [`EventQueue::dropped`] counts it (saturating): the
 /// loss is never silent. (The latched state keeps what matters even then.)
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct EventQueue<const Q: usize> {
     buf: [Option<Event>; Q],
     head: usize,

@@ -80,6 +80,7 @@ impl AlarmConfig {
 /// assert_eq!(m.latched(), Level::Normal);
 /// ```
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct AlarmMachine<const Q: usize> {
     config: AlarmConfig,
     active: Level,

@@ -35,6 +35,7 @@ pub const MAX_DELAY_TICKS: u32 = i32::MAX as u32;
 /// assert_eq!(plan.budget_ticks(600, 10), 597);
 /// ```
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct SilencePlan<const K: usize> {
     factors_q32: [u64; K],
     min_gaps: u16,
@@ -219,6 +220,7 @@ impl DeviceSlot {
 /// assert_eq!(w.poll(Ticks(759)), SilenceState::Silent);
 /// ```
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct SilenceWatcher<const K: usize> {
     plan: SilencePlan<K>,
     slot: DeviceSlot,
@@ -286,6 +288,7 @@ impl<const K: usize> NextDeadline for SilenceWatcher<K> {
 /// assert_eq!(fleet.next_silent(Ticks(793)), None); // reported once
 /// ```
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct SilenceFleet<const N: usize, const K: usize> {
     plan: SilencePlan<K>,
     slots: [DeviceSlot; N],

@@ -63,6 +63,7 @@ use crate::ticks::Ticks;
 /// assert_eq!(top, Level::Alarm);
 /// ```
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct WindowDetector<const N: usize> {
     window: BinWindow<N>,
     background: SmoothedRate,

@@ -51,6 +51,7 @@ pub enum StepSeen {
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
 struct StepLimits {
     basis_q32: u64,
     above: u32,
@@ -98,6 +99,7 @@ struct StepLimits {
 /// assert_eq!(r.averaging_ticks(), 2); // restarted from the probe
 /// ```
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct AdaptiveRate<const N: usize> {
     window: BinWindow<N>,
     config: AdaptiveConfig,

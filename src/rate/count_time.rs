@@ -36,6 +36,7 @@ use crate::ticks::Ticks;
 /// assert!((r.relative_uncertainty().unwrap() - 0.35355339).abs() < 1e-8);
 /// ```
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct TimeToCount<const N: usize> {
     stamps: [Ticks; N],
     head: usize,

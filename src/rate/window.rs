@@ -33,6 +33,7 @@ use crate::ticks::Ticks;
 /// assert_eq!(w.filled_ticks(), 4);
 /// ```
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct BinWindow<const N: usize> {
     bins: [u32; N],
     head: usize,
