@@ -314,3 +314,15 @@ mod properties {
         }
     }
 }
+
+#[test]
+fn stored_designs_rebuild_the_same_detectors() {
+    let plan = SilencePlan::<16>::new(1e-4_f64, 4, 600).unwrap();
+    let again = SilencePlan::<16>::from_factors(*plan.factors_q32(), 4, 600).unwrap();
+    assert_eq!(plan, again);
+    assert!(SilencePlan::<16>::from_factors([0; 16], 0, 600).is_err());
+    let c = SprtConfig::for_means(1.0_f64, 2.0, 0.05, 0.05, 1 << 16, 0).unwrap();
+    let (a, b, u, l, m, s) = c.scaled();
+    assert_eq!(SprtConfig::from_scaled(a, b, u, l, m, s).unwrap(), c);
+    assert!(SprtConfig::from_scaled(a, b, -u, l, m, s).is_err());
+}

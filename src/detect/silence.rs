@@ -82,6 +82,32 @@ impl<const K: usize> SilencePlan<K> {
         })
     }
 
+    /// A plan from stored factors (UQ32.32, `c_k` at index `k − 1`), e.g.
+    /// computed on a host with [`SilencePlan::new`] and kept as a constant
+    /// in firmware that must not link floating point.
+    pub const fn from_factors(
+        factors_q32: [u64; K],
+        min_gaps: u16,
+        learning_ticks: u32,
+    ) -> Result<Self, Error> {
+        if min_gaps == 0 || min_gaps as usize > K {
+            return Err(Error::OutOfRange(Param::Events));
+        }
+        if learning_ticks == 0 || learning_ticks > MAX_DELAY_TICKS {
+            return Err(Error::OutOfRange(Param::Ticks));
+        }
+        Ok(SilencePlan {
+            factors_q32,
+            min_gaps,
+            learning_ticks,
+        })
+    }
+
+    /// The stored factors `c_k` (UQ32.32).
+    pub const fn factors_q32(&self) -> &[u64; K] {
+        &self.factors_q32
+    }
+
     /// The silence budget in ticks after `gaps` learned gaps (1..=K) summing
     /// to `gap_sum_ticks` (capped at [`MAX_DELAY_TICKS`]); the learning
     /// budget below `min_gaps`.

@@ -86,6 +86,43 @@ impl SprtConfig {
         })
     }
 
+    /// From scaled integers (`scale` units per nat): the gain per count
+    /// `ln(μ1/μ0)`, the loss per tick `μ1 − μ0`, the boundaries
+    /// (`upper > 0 > lower`) and the truncation (0: none); for firmware that
+    /// stores a design made elsewhere.
+    pub const fn from_scaled(
+        per_count: i64,
+        per_tick: i64,
+        upper: i64,
+        lower: i64,
+        max_ticks: u32,
+        scale: u32,
+    ) -> Result<Self, Error> {
+        if per_count <= 0 || per_tick <= 0 || upper <= 0 || lower >= 0 || scale == 0 {
+            return Err(Error::OutOfRange(Param::Threshold));
+        }
+        Ok(SprtConfig {
+            per_count,
+            per_tick,
+            upper,
+            lower,
+            max_ticks,
+            scale,
+        })
+    }
+
+    /// The scaled parts `(per_count, per_tick, upper, lower, max_ticks, scale)`.
+    pub const fn scaled(&self) -> (i64, i64, i64, i64, u32, u32) {
+        (
+            self.per_count,
+            self.per_tick,
+            self.upper,
+            self.lower,
+            self.max_ticks,
+            self.scale,
+        )
+    }
+
     /// The upper boundary in nats.
     pub fn upper_nats<F: Real>(&self) -> F {
         F::of(self.upper as f64) / F::of_u32(self.scale)
