@@ -316,3 +316,29 @@ fn corrected_rate_uncertainty_matches_simulation() {
         );
     }
 }
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(400))]
+
+    // No input makes a dead-time call panic: bad input is an error, good input a number.
+    #[test]
+    fn no_panics(m in proptest::num::f64::ANY, tau in proptest::num::f64::ANY, f in proptest::num::f64::ANY,
+                 rates in prop::array::uniform4(proptest::num::f64::ANY), counts in any::<u32>(),
+                 stamps in prop::collection::vec(-1e3f64..1e3, 0..40)) {
+        for model in [DeadTime::non_paralyzable(tau), DeadTime::paralyzable(tau), DeadTime::hybrid(tau, f)].into_iter().flatten() {
+            if let Ok(c) = model.correct(m) {
+                prop_assert!(c.true_cps >= 0.0 && !c.true_cps.is_nan());
+            }
+            let _ = model.measured_cps(m);
+            let _ = model.correct_with_uncertainty(m, rates[0], rates[1]);
+        }
+        let _ = two_source(rates[0], rates[1], rates[2], rates[3], Some(m));
+        let _ = fit_intervals(&stamps);
+        let points: Vec<DecayPoint<f64>> = stamps.iter().map(|&t| DecayPoint { time_s: t, measured_cps: t.abs() * 10.0, counting_s: None }).collect();
+        let _ = fit_decay(&points, 100.0, ModelKind::Paralyzable, 1.0);
+        let table = CorrectionTable::<8>::new(&DeadTime::paralyzable(1e-4_f64).unwrap(), 1.0, 0.9).unwrap();
+        if let Some(n) = table.correct(counts) {
+            prop_assert!(n >= counts);
+        }
+    }
+}

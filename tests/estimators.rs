@@ -286,3 +286,37 @@ fn counters_saturate_instead_of_wrapping() {
     assert_eq!(w.sum(), 2 * u64::from(u32::MAX));
     assert_eq!(w.sum_u32(), u32::MAX);
 }
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(300))]
+
+    // No input makes an estimator or detector call panic.
+    #[test]
+    fn chain_calls_never_panic(steps in prop::collection::vec((any::<u32>(), any::<u32>()), 1..80), tick_s in proptest::num::f64::ANY) {
+        use countward::detect::{LevelThresholds, WindowDetector, SilenceFleet, SilencePlan};
+        use countward::fixed::FixedMean;
+        let mut w = BinWindow::<8>::new();
+        let mut s = SmoothedRate::new(3).unwrap();
+        let mut a = AdaptiveRate::<32>::new(AdaptiveConfig::new(50, 8, 2).unwrap());
+        let mut t = TimeToCount::<8>::new();
+        let mut d = WindowDetector::<8>::new(FixedMean::from_counts(3).unwrap(), FixedMean::from_counts(1).unwrap(), 6).unwrap();
+        d.set_thresholds(LevelThresholds::new(40, 30, 60, 40, Some((5, 10))).unwrap(), FixedMean::from_counts(24).unwrap());
+        let mut fleet = SilenceFleet::<4, 8>::new(SilencePlan::<8>::new(1e-3_f64, 2, 100).unwrap());
+        let alpha = FixedAlpha::one_in(1000).unwrap();
+        for (now, c) in steps {
+            w.add(Ticks(now), c);
+            s.update(c);
+            a.add(Ticks(now), c);
+            if a.needs_refresh() { let _ = a.refresh(alpha); }
+            t.record(Ticks(now));
+            d.tick(Ticks(now), c);
+            let _ = fleet.event(c as usize % 6, Ticks(now));
+            let _ = fleet.next_silent(Ticks(now));
+        }
+        let _ = w.reading(tick_s);
+        let _ = s.reading(tick_s);
+        let _ = a.reading(tick_s);
+        let _ = t.reading(tick_s);
+        let _ = t.interval_cps(tick_s, 0.9);
+    }
+}
