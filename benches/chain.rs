@@ -85,15 +85,11 @@ fn benches(c: &mut Criterion) {
     g.finish();
 }
 
-/// Mean time of one benchmark from Criterion's estimates of this run, in ns.
+mod support;
+
+/// Mean time of one benchmark of this group, in ns.
 fn estimate_ns(bench: &str) -> Option<f64> {
-    let dir = std::env::var("CARGO_TARGET_DIR").unwrap_or_else(|_| "target".into());
-    let text = std::fs::read_to_string(format!("{dir}/criterion/chain/{bench}/new/estimates.json"))
-        .ok()?;
-    let rest = &text[text.find("\"mean\"")?..];
-    let p = rest.find("\"point_estimate\":")? + "\"point_estimate\":".len();
-    let end = rest[p..].find(',')?;
-    rest[p..p + end].trim().parse().ok()
+    support::estimate_ns(&format!("chain/{bench}"))
 }
 
 fn main() {

@@ -76,16 +76,11 @@ fn benches(c: &mut Criterion) {
     g.finish();
 }
 
-/// Mean time of one benchmark from Criterion's estimates of this run, in ns.
+mod support;
+
+/// Mean time of one benchmark of this group at mean `mu`, in ns.
 fn estimate_ns(bench: &str, mu: f64) -> Option<f64> {
-    let dir = std::env::var("CARGO_TARGET_DIR").unwrap_or_else(|_| "target".into());
-    let path = format!("{dir}/criterion/alarm_threshold/{bench}/{mu}/new/estimates.json");
-    let text = std::fs::read_to_string(path).ok()?;
-    let at = text.find("\"mean\"")?;
-    let rest = &text[at..];
-    let p = rest.find("\"point_estimate\":")? + "\"point_estimate\":".len();
-    let end = rest[p..].find(',')?;
-    rest[p..p + end].trim().parse().ok()
+    support::estimate_ns(&format!("alarm_threshold/{bench}/{mu}"))
 }
 
 fn main() {

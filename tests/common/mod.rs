@@ -123,19 +123,5 @@ pub fn recorded_count(
     duration_s: f64,
     paralyzable: bool,
 ) -> u64 {
-    let mut count = 0u64;
-    let mut t = 0.0;
-    let mut dead_until = f64::NEG_INFINITY;
-    loop {
-        t += exponential(rng, rate_cps);
-        if t >= duration_s {
-            return count;
-        }
-        if t >= dead_until {
-            count += 1;
-            dead_until = t + tau_s;
-        } else if paralyzable {
-            dead_until = t + tau_s;
-        }
-    }
+    recorded_events(rng, rate_cps, tau_s, duration_s, paralyzable).len() as u64
 }

@@ -1,7 +1,7 @@
 //! `countward deadtime …`: correction of measured rates and bench
 //! estimation of the dead time. Every number comes from `countward::deadtime`.
 
-use super::{Failure, SAFETY, bad, check, lib, num};
+use super::{Failure, SAFETY, bad, check, check_non_negative, check_positive, lib, num};
 use clap::{Args, Subcommand, ValueEnum};
 use countward::Error;
 use countward::deadtime::{self, DeadTime, DecayFit, DecayPoint, ModelKind};
@@ -173,12 +173,7 @@ fn fraction(model: Model, f: Option<f64>) -> Result<f64, Failure> {
 }
 
 fn correct(a: CorrectArgs) -> Result<(String, Value), Failure> {
-    let m = check(
-        "--measured-cps",
-        a.measured_cps,
-        a.measured_cps >= 0.0,
-        "must be 0 or more",
-    )?;
+    let m = check_non_negative("--measured-cps", a.measured_cps)?;
     let tau = check(
         "--dead-time-s",
         a.dead_time_s,
@@ -220,13 +215,8 @@ fn correct(a: CorrectArgs) -> Result<(String, Value), Failure> {
         num(tau)
     );
     if let Some(t) = a.seconds {
-        let t = check("--seconds", t, t > 0.0, "must be greater than 0")?;
-        let sd = check(
-            "--dead-time-sd-s",
-            a.dead_time_sd_s,
-            a.dead_time_sd_s >= 0.0,
-            "must be 0 or more",
-        )?;
+        let t = check_positive("--seconds", t)?;
+        let sd = check_non_negative("--dead-time-sd-s", a.dead_time_sd_s)?;
         let u = model.correct_with_uncertainty(m, t, sd).map_err(lib)?;
         v["std_uncertainty_cps"] = json!(u.std_uncertainty_cps);
         text += &format!(
@@ -252,20 +242,14 @@ fn correct(a: CorrectArgs) -> Result<(String, Value), Failure> {
 }
 
 fn two_source(a: TwoSourceArgs) -> Result<(String, Value), Failure> {
-    let pos = |flag: &str, v: f64| check(flag, v, v > 0.0, "must be greater than 0");
     let (m1, m2, m12) = (
-        pos("--a-cps", a.a_cps)?,
-        pos("--b-cps", a.b_cps)?,
-        pos("--ab-cps", a.ab_cps)?,
+        check_positive("--a-cps", a.a_cps)?,
+        check_positive("--b-cps", a.b_cps)?,
+        check_positive("--ab-cps", a.ab_cps)?,
     );
-    let mb = check(
-        "--background-cps",
-        a.background_cps,
-        a.background_cps >= 0.0,
-        "must be 0 or more",
-    )?;
+    let mb = check_non_negative("--background-cps", a.background_cps)?;
     let t = match a.seconds {
-        Some(t) => Some(pos("--seconds", t)?),
+        Some(t) => Some(check_positive("--seconds", t)?),
         None => None,
     };
     let r = deadtime::two_source(m1, m2, m12, mb, t).map_err(|e| match e {
@@ -297,12 +281,7 @@ fn two_source(a: TwoSourceArgs) -> Result<(String, Value), Failure> {
 }
 
 fn decay(a: DecayArgs) -> Result<(String, Value), Failure> {
-    let half = check(
-        "--half-life-s",
-        a.half_life_s,
-        a.half_life_s > 0.0,
-        "must be greater than 0",
-    )?;
+    let half = check_positive("--half-life-s", a.half_life_s)?;
     let table = csv::read(&a.input, &["time_s", "measured_cps"], &["counting_s"])
         .map_err(|e| Failure(e.join("\n")))?;
     let mut errors = table.errors.clone();

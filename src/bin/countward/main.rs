@@ -148,6 +148,16 @@ fn check(flag: &str, v: f64, ok: bool, why: &str) -> Result<f64, Failure> {
     Ok(v)
 }
 
+/// A finite number greater than 0.
+fn check_positive(flag: &str, v: f64) -> Result<f64, Failure> {
+    check(flag, v, v > 0.0, "must be greater than 0")
+}
+
+/// A finite number of 0 or more.
+fn check_non_negative(flag: &str, v: f64) -> Result<f64, Failure> {
+    check(flag, v, v >= 0.0, "must be 0 or more")
+}
+
 fn check_mean(v: f64) -> Result<f64, Failure> {
     check(
         "--mean",
@@ -351,12 +361,7 @@ fn limits(a: LimitsArgs) -> Result<(String, Value), Failure> {
 }
 
 fn silence(a: SilenceArgs) -> Result<(String, Value), Failure> {
-    let rate = check(
-        "--rate-cps",
-        a.rate_cps,
-        a.rate_cps > 0.0,
-        "must be greater than 0",
-    )?;
+    let rate = check_positive("--rate-cps", a.rate_cps)?;
     let alpha = check_open("--alpha", a.alpha)?;
     if a.events == 0 {
         return Err(bad("--events", 0, "must be at least 1"));
