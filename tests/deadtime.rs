@@ -107,7 +107,7 @@ proptest! {
         };
         // Near the peak the inverse is ill-conditioned: the tolerance follows
         // the condition number (documented as `gain`).
-        let slope = model.log_slope_for_tests(n).abs();
+        let slope = model.log_slope(n).abs();
         let tol = 1e-12 + 4e-15 / slope.max(1e-300) + 2e-8 * (1.0 / slope.max(1e-300)).sqrt() * f64::from(slope < 1e-3);
         prop_assert!(((back - n) / n).abs() < tol.max(1e-10), "n {} back {} slope {}", n, back, slope);
     }

@@ -138,16 +138,11 @@ impl<F: Real> DeadTime<F> {
         n * (-n * a).exp() / (F::ONE + n * b)
     }
 
-    /// `d ln m / d ln n` at true rate `n`.
-    pub(crate) fn log_slope(&self, n: F) -> F {
+    /// `d ln m / d ln n` at true rate `n` (1 at low rates, 0 at the peak,
+    /// negative beyond it): the inverse of [`Correction::gain`].
+    pub fn log_slope(&self, n: F) -> F {
         let (a, b) = self.parts();
         F::ONE - n * a - n * b / (F::ONE + n * b)
-    }
-
-    /// `d ln m / d ln n` at true rate `n` (1 at low rates, 0 at the peak,
-    /// negative beyond it): the inverse of the correction's gain.
-    pub fn log_slope_for_tests(&self, n: F) -> F {
-        self.log_slope(n)
     }
 
     /// `∂ ln m / ∂ τ` at fixed true rate `n` (τ scaled with f fixed).
@@ -198,7 +193,8 @@ impl<F: Real> DeadTime<F> {
         let gain_limit = F::of(SATURATION_GAIN);
         let tau = self.tau_s;
         let (low, high) = match self.kind {
-            ModelKind::NonParalyzable => {
+            // No peak (non-paralyzable, or a hybrid with f = 0): one closed-form solution.
+            _ if self.parts().0 <= F::ZERO => {
                 if m * tau >= F::ONE {
                     return Err(Error::OutOfRange(Param::RateCps));
                 }
@@ -219,7 +215,7 @@ impl<F: Real> DeadTime<F> {
                     (lo, Some(hi))
                 }
             }
-            ModelKind::Hybrid => self.hybrid_inverse(m)?,
+            _ => self.hybrid_inverse(m)?,
         };
         let slope = self.log_slope(low);
         let gain = if slope > F::ZERO {
@@ -236,14 +232,8 @@ impl<F: Real> DeadTime<F> {
     }
 
     fn hybrid_inverse(&self, m: F) -> Result<(F, Option<F>), Error> {
-        let Some((n_peak, m_peak)) = self.peak() else {
-            // f = 0: the non-paralyzable closed form.
-            let tau = self.tau_s;
-            if m * tau >= F::ONE {
-                return Err(Error::OutOfRange(Param::RateCps));
-            }
-            return Ok((m / (F::ONE - m * tau), None));
-        };
+        // `correct` handles the models without a peak in closed form.
+        let (n_peak, m_peak) = self.peak().ok_or(Error::NoConvergence)?;
         if m > m_peak * (F::ONE + F::EPSILON * F::of(8.0)) {
             return Err(Error::OutOfRange(Param::RateCps));
         }

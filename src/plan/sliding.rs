@@ -1,8 +1,16 @@
 //! Upcrossings of a sliding-window count (exact, for Poisson bins).
 
-use crate::error::{Error, Param, check_range};
+use crate::error::{Error, Param, check_open_unit, check_range};
 use crate::math::Real;
 use crate::poisson::{alarm_threshold, at_least, at_most, pmf};
+
+/// Validates a per-tick mean (0 to 1e8) and a window of at least one bin.
+fn check_window<F: Real>(mean_per_tick: F, bins: u32) -> Result<F, Error> {
+    if bins == 0 {
+        return Err(Error::OutOfRange(Param::Ticks));
+    }
+    check_range(mean_per_tick, F::ZERO, F::of(1e8), Param::Mean)
+}
 
 /// Expected upcrossings per tick of level `threshold` by the count of a
 /// sliding window of `bins` ticks, for Poisson counts of mean
@@ -34,10 +42,7 @@ pub fn sliding_upcrossings_per_tick<F: Real>(
     bins: u32,
     threshold: u32,
 ) -> Result<F, Error> {
-    let mu = check_range(mean_per_tick, F::ZERO, F::of(1e8), Param::Mean)?;
-    if bins == 0 {
-        return Err(Error::OutOfRange(Param::Ticks));
-    }
+    let mu = check_window(mean_per_tick, bins)?;
     if threshold == 0 || mu == F::ZERO {
         return Ok(F::ZERO);
     }
@@ -102,11 +107,8 @@ pub fn sliding_threshold<F: Real>(
     bins: u32,
     max_per_tick: F,
 ) -> Result<u32, Error> {
-    let mu = check_range(mean_per_tick, F::ZERO, F::of(1e8), Param::Mean)?;
-    if bins == 0 {
-        return Err(Error::OutOfRange(Param::Ticks));
-    }
-    let target = crate::error::check_open_unit(max_per_tick, Param::Alpha)?;
+    let mu = check_window(mean_per_tick, bins)?;
+    let target = check_open_unit(max_per_tick, Param::Alpha)?;
     let window_mean = mu * F::of_u32(bins);
     let hi = alarm_threshold(window_mean, target)?.counts;
     // Invariant: rate(hi) <= target; find the smallest such k in [1, hi].

@@ -137,9 +137,9 @@ impl SmoothedRate {
             return Ok(None);
         }
         let mu = F::of_u64(self.mean_q32) / F::of(4_294_967_296.0);
-        let a = self.weight::<F>();
-        let t_eq = (F::TWO - a) / a;
-        let std_per_tick = (a * mu / (F::TWO - a)).sqrt();
+        let t_eq = self.equivalent_counting_ticks::<F>();
+        // Var(y) = a/(2 − a) · μ = μ / t_eq.
+        let std_per_tick = (mu / t_eq).sqrt();
         let equivalent = (mu * t_eq + F::HALF).to_u64_saturating();
         Ok(Some(RateReading {
             rate_cps: mu / tick_s,
