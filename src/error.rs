@@ -39,6 +39,9 @@ pub enum Param {
     TargetCounts,
     /// Input data (a series of measurements or time stamps).
     Data,
+    /// The lattice scale of an integer design (sub-units per count or per
+    /// nat): too coarse when a rounded term would lose its meaning.
+    Scale,
 }
 
 impl Param {
@@ -61,6 +64,7 @@ impl Param {
             Param::Fraction => "fraction",
             Param::TargetCounts => "target_counts",
             Param::Data => "data",
+            Param::Scale => "scale",
         }
     }
 }

@@ -80,28 +80,38 @@ pub fn two_source<F: Real>(
         None => None,
         Some(t) => {
             let rates = [m1, m2, m12, mb];
+            // Steps relative to the scale of the data, not of each rate: a
+            // step relative to a tiny (even subnormal) background is no step
+            // at all, and its difference quotient was NaN. A rate smaller
+            // than its step gets a one-sided (forward) difference.
+            let big = |u: F, v: F| if u > v { u } else { v };
+            let scale = big(big(m1, m2), m12);
+            let h = scale * F::EPSILON.sqrt() * F::of(8.0);
             let mut var = F::ZERO;
             for i in 0..4 {
                 if rates[i] == F::ZERO {
                     continue;
                 }
-                let h = rates[i] * F::EPSILON.sqrt() * F::of(8.0);
                 let mut up = rates;
                 let mut down = rates;
                 up[i] += h;
-                down[i] -= h;
+                let central = rates[i] > h;
+                if central {
+                    down[i] -= h;
+                }
                 let (Some(tu), Some(td)) = (
                     two_source_exact(up[0], up[1], up[2], up[3]),
                     two_source_exact(down[0], down[1], down[2], down[3]),
                 ) else {
                     return Err(Error::NotDetermined(Param::DeadTime));
                 };
-                let d = (tu - td) / (F::TWO * h);
+                let d = (tu - td) / if central { F::TWO * h } else { h };
                 let live = F::ONE - rates[i] * tau;
                 var += d * d * rates[i] * live * live / t;
             }
             let sd = var.sqrt();
-            if tau < F::TWO * sd {
+            // No NaN or infinity leaves as a result.
+            if !sd.is_finite() || tau < F::TWO * sd {
                 return Err(Error::NotDetermined(Param::DeadTime));
             }
             Some(sd)

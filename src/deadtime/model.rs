@@ -164,12 +164,19 @@ impl<F: Real> DeadTime<F> {
     /// For `m = n e^{−na}/(1 + nb)` the peak is where `1 − na − n²ab = 0`:
     /// `n* = 2/(a + √(a² + 4ab))` (1/τ when paralyzable).
     pub fn peak(&self) -> Option<(F, F)> {
-        let (a, b) = self.parts();
+        let (a, _) = self.parts();
         if a <= F::ZERO {
             return None;
         }
-        let n = F::TWO / (a + (a * a + F::of(4.0) * a * b).sqrt());
-        Some((n, self.forward(n)))
+        // In units of τ (a = fτ, b = (1 − f)τ), so that a² and ab cannot
+        // underflow for tiny τ (they did below τ ≈ 1.5e-154: 26 % low).
+        let f = match self.kind {
+            ModelKind::Paralyzable => F::ONE,
+            _ => self.fraction,
+        };
+        let n = F::TWO / self.tau_s / (f + (f * f + F::of(4.0) * f * (F::ONE - f)).sqrt());
+        // A peak beyond the float range: the paralyzable part never shows.
+        n.is_finite().then(|| (n, self.forward(n)))
     }
 
     /// The largest measured rate the model can produce: the peak, or 1/τ
@@ -194,7 +201,7 @@ impl<F: Real> DeadTime<F> {
         let tau = self.tau_s;
         let (low, high) = match self.kind {
             // No peak (non-paralyzable, or a hybrid with f = 0): one closed-form solution.
-            _ if self.parts().0 <= F::ZERO => {
+            _ if self.peak().is_none() => {
                 if m * tau >= F::ONE {
                     return Err(Error::OutOfRange(Param::RateCps));
                 }
@@ -243,7 +250,7 @@ impl<F: Real> DeadTime<F> {
         if m >= m_peak {
             return Ok((n_peak, Some(n_peak)));
         }
-        let low = self.solve_branch(m, m, n_peak)?;
+        let low = self.solve_branch(m, m, n_peak, true)?;
         // The high branch: bracket by doubling beyond the peak.
         let mut hi = n_peak * F::TWO;
         let mut steps = 0;
@@ -254,23 +261,37 @@ impl<F: Real> DeadTime<F> {
                 return Err(Error::NoConvergence);
             }
         }
-        let high = self.solve_branch(m, n_peak, hi)?;
+        let high = self.solve_branch(m, n_peak, hi, false)?;
         Ok((low, Some(high)))
     }
 
     /// Solves `ln m(n) = ln m` on `[lo, hi]`, where `m(n) − m` changes sign
     /// once: Newton steps in `n` kept inside a shrinking bracket.
-    fn solve_branch(&self, m: F, mut lo: F, mut hi: F) -> Result<F, Error> {
+    /// The root of `forward(n) = m` in `[lo, hi]`, where `ln forward − ln m`
+    /// rises (`rising`: the low branch) or falls (the high branch). The
+    /// direction is known, not read off `g(lo)`: next to the peak `g(lo)` is
+    /// within rounding of 0 and its sign is noise (the fold-back root came
+    /// out 26 % off within 1e-15 of the peak). Newton where it stays in the
+    /// bracket; else bisection, geometric while the bracket spans more than
+    /// a factor 4 (an arithmetic one needed over 200 halvings for brackets
+    /// like [500, 3e67], the peak of a hybrid with f = 1e-130).
+    fn solve_branch(&self, m: F, mut lo: F, mut hi: F, rising: bool) -> Result<F, Error> {
         let target = m.ln();
         let g = |n: F| -> F { self.forward(n).ln() - target };
-        let g_lo = g(lo);
-        let mut n = (lo + hi) * F::HALF;
-        for _ in 0..200 {
+        let mid = |lo: F, hi: F| -> F {
+            if lo > F::ZERO && hi > F::of(4.0) * lo {
+                lo.sqrt() * hi.sqrt()
+            } else {
+                (lo + hi) * F::HALF
+            }
+        };
+        let mut n = mid(lo, hi);
+        for _ in 0..400 {
             let v = g(n);
             if v == F::ZERO {
                 return Ok(n);
             }
-            if (v > F::ZERO) == (g_lo > F::ZERO) {
+            if (v < F::ZERO) == rising {
                 lo = n;
             } else {
                 hi = n;
@@ -280,7 +301,7 @@ impl<F: Real> DeadTime<F> {
             let next = if d != F::ZERO && newton > lo && newton < hi {
                 newton
             } else {
-                (lo + hi) * F::HALF
+                mid(lo, hi)
             };
             if (next - n).abs() <= F::EPSILON * F::of(4.0) * n
                 || hi - lo <= F::EPSILON * F::of(4.0) * hi

@@ -15,9 +15,13 @@ use crate::math::Real;
 /// reading is over range (treat it as saturation, never as a number).
 ///
 /// Error bound: the constructor measures the largest relative error of the
-/// interpolated factor against the model's inverse at 32 points in every
-/// interval, adds the UQ8.24 rounding, and keeps the result in parts per
-/// million ([`CorrectionTable::error_bound_ppm`]). The corrected count is
+/// factor *as `correct` reads it* (at the grid position given by the rounded
+/// Q32 factor, whose rounding stretches every position by up to `2^-33/p`
+/// relative, `p` the factor) against the model's inverse, at 32 points in
+/// every interval and where the stretched reading crosses a node, adds the
+/// UQ8.24 rounding, and keeps the result in parts per million
+/// ([`CorrectionTable::error_bound_ppm`]); positions whose corrected count
+/// would not fit a `u32` (answered `None`) are not counted. The corrected count is
 /// within that relative error plus half a count of the float correction.
 /// Non-paralyzable `g` is convex with `g'' = 2/(1 − x)³`, so the error
 /// grows as `h²/(1 − x)³`: keep `coverage` where losses are moderate.
@@ -79,24 +83,57 @@ impl<const N: usize> CorrectionTable<N> {
         if !(p < F::of(1.8e19)) || p < F::ONE {
             return Err(Error::OutOfRange(Param::Seconds));
         }
-        let position_per_count_q32 = p.to_u64_saturating();
-        // Measured error bound of the interpolated factor.
+        // Rounded to nearest; the table is then read at `x · stretch`
+        // instead of `x`, which the error bound below accounts for.
+        let position_per_count_q32 = (p + F::HALF).floor().to_u64_saturating();
+        let stretch = F::of_u64(position_per_count_q32) / p;
+        // The factor the table gives for a count at true position `x` (grid
+        // units of `step`), as `correct` computes it (to the UQ8.24 ulp).
+        let read = |pos: F| -> Option<F> {
+            let i = pos.floor();
+            let j = i.to_u32_saturating() as usize;
+            if j >= N - 1 {
+                return (j == N - 1 && pos == i).then(|| F::of_u32(gain_q24[N - 1]) / scale);
+            }
+            let frac = pos - i;
+            let lo = F::of_u32(gain_q24[j]) / scale;
+            let hi = F::of_u32(gain_q24[j + 1]) / scale;
+            Some(lo + (hi - lo) * frac)
+        };
+        // Measured error bound of the factor as read: 32 points in every
+        // interval, plus the points where the stretched reading crosses a
+        // node (where the error has its kinks).
         let mut worst = F::ZERO;
-        for j in 0..N - 1 {
-            for s in 0..=32u32 {
-                let frac = F::of_u32(s) / F::of(32.0);
-                let x = step * (F::of_u32(j as u32) + frac);
-                let lo = F::of_u32(gain_q24[j]) / scale;
-                let hi = F::of_u32(gain_q24[j + 1]) / scale;
-                let interp = lo + (hi - lo) * frac;
-                let e = exact(x)?;
-                let rel = ((interp - e) / e).abs();
+        // Positions whose corrected count overflows a u32 return `None` and
+        // do not count.
+        let max_out = F::of(4_294_967_295.0);
+        let mut check = |pos: F| -> Result<(), Error> {
+            if let Some(g) = read(pos * stretch) {
+                let e = exact(step * pos)?;
+                if pos / per_count * e > max_out {
+                    return Ok(());
+                }
+                let rel = ((g - e) / e).abs();
                 if rel > worst {
                     worst = rel;
                 }
             }
+            Ok(())
+        };
+        for j in 0..N - 1 {
+            for s in 0..32u32 {
+                check(F::of_u32(j as u32) + F::of_u32(s) / F::of(32.0))?;
+            }
+            let node = F::of_u32(j as u32 + 1) / stretch;
+            check(node)?;
+            check(node * (F::ONE - F::EPSILON * F::of(4.0)))?;
         }
-        let ppm = (worst * F::of(1e6))
+        check(F::of_u32(N as u32 - 1))?;
+        // Plus the integer steps of `correct`: the interpolation truncated
+        // to the UQ8.24 ulp and the position fraction to 2^-32 grid units
+        // (together at most 2 ulp of a factor ≥ 1: 0.12 ppm), and one ppm
+        // for the sampling between the measured points.
+        let ppm = (worst * F::of(1e6) + F::of(0.12))
             .floor()
             .to_u32_saturating()
             .saturating_add(1);

@@ -43,7 +43,7 @@ impl CusumConfig {
         direction: CusumDirection,
     ) -> Result<Self, Error> {
         if scale == 0 || scale > (1 << 16) {
-            return Err(Error::OutOfRange(Param::Shift));
+            return Err(Error::OutOfRange(Param::Scale));
         }
         if decision == 0 || head_start >= decision {
             return Err(Error::OutOfRange(Param::Threshold));
@@ -83,9 +83,14 @@ impl CusumConfig {
         if m0 == m1 {
             return Err(Error::OutOfRange(Param::Mean));
         }
-        let k = (m1 - m0) / (m1.ln() - m0.ln());
+        let k = logarithmic_mean(m0, m1);
         let s = F::of_u32(scale);
         let reference = (k * s + F::HALF).floor();
+        // A reference of 0 on the lattice is no CUSUM: an increase scheme
+        // would only ever grow, a decrease scheme never leave 0.
+        if reference < F::ONE {
+            return Err(Error::OutOfRange(Param::Scale));
+        }
         let decision = (h * s + F::HALF).floor();
         if reference * F::of_u32(4) >= F::of_u32(u32::MAX) || decision >= F::of_u32(u32::MAX) {
             return Err(Error::OutOfRange(Param::Threshold));
@@ -129,6 +134,27 @@ impl CusumConfig {
     /// The reference value in counts per tick.
     pub fn reference_counts<F: Real>(&self) -> F {
         F::of_u32(self.reference) / F::of_u32(self.scale)
+    }
+}
+
+/// Lucas's reference value `(m1 − m0)/(ln m1 − ln m0)` (the logarithmic mean
+/// of the two means), in the form `m0 · d / ln(1 + d)`, `d = (m1 − m0)/m0`,
+/// which does not cancel when the means are close: `m1 − m0` is exact there
+/// (Sterbenz) and `ln_1p` keeps its relative accuracy, so the result stays
+/// between the two means for any pair (the difference of two logarithms lost
+/// every digit for means a few ulps apart).
+fn logarithmic_mean<F: Real>(m0: F, m1: F) -> F {
+    let d = (m1 - m0) / m0;
+    let ratio = d / d.ln_1p(); // → 1 + d/2 as d → 0; d ≠ 0 here
+    let k = m0 * ratio;
+    // Rounding cannot leave [min, max] by more than an ulp; clamp it back.
+    let (lo, hi) = if m0 < m1 { (m0, m1) } else { (m1, m0) };
+    if k < lo {
+        lo
+    } else if k > hi {
+        hi
+    } else {
+        k
     }
 }
 

@@ -38,6 +38,9 @@ impl SprtConfig {
     /// (Wald 1945). Each term is rounded to `1/scale` nat; `max_ticks`
     /// truncates a test (0: never), as recommended for long-term monitoring.
     ///
+    /// Errors: [`Param::Scale`] when `scale` is too coarse for the design
+    /// (a gain, loss or boundary would round to 0 or move by more than 1 %).
+    ///
     /// ```
     /// use countward::detect::SprtConfig;
     /// // λ0 = 1, λ1 = 2 per tick, α = β = 0.05: boundaries ±ln 19 = ±2.944439.
@@ -62,7 +65,7 @@ impl SprtConfig {
             return Err(Error::OutOfRange(Param::Mean));
         }
         if scale == 0 || scale > (1 << 20) {
-            return Err(Error::OutOfRange(Param::Shift));
+            return Err(Error::OutOfRange(Param::Scale));
         }
         if a + b >= F::ONE {
             return Err(Error::OutOfRange(Param::Probability));
@@ -76,14 +79,29 @@ impl SprtConfig {
             let mag = (r.abs() + F::HALF).floor().to_u64_saturating() as i64;
             Ok(if r < F::ZERO { -mag } else { mag })
         };
-        Ok(SprtConfig {
-            per_count: round((m1 / m0).ln())?,
-            per_tick: round(m1 - m0)?,
-            upper: round(((F::ONE - b) / a).ln())?,
-            lower: round((b / (F::ONE - a)).ln())?,
-            max_ticks,
-            scale,
-        })
+        // ln(μ1/μ0) as ln_1p of the relative step (no cancellation for
+        // close means); the boundaries likewise as ln_1p of small differences.
+        let per_count = (m1 - m0) / m0;
+        let terms = [
+            per_count.ln_1p(),
+            m1 - m0,
+            ((F::ONE - b - a) / a).ln_1p(),
+            -((F::ONE - a - b) / b).ln_1p(),
+        ];
+        let mut scaled = [0i64; 4];
+        for (out, v) in scaled.iter_mut().zip(terms) {
+            let r = round(v)?;
+            // Every term must survive the lattice within 1 %: a gain or
+            // loss rounded to 0 (or far off) is a different test, one that
+            // may never decide.
+            let err = (F::of(r as f64) - v * s).abs();
+            if r == 0 || err > F::of(0.01) * (v * s).abs() {
+                return Err(Error::OutOfRange(Param::Scale));
+            }
+            *out = r;
+        }
+        let [per_count, per_tick, upper, lower] = scaled;
+        Self::from_scaled(per_count, per_tick, upper, lower, max_ticks, scale)
     }
 
     /// From scaled integers (`scale` units per nat): the gain per count

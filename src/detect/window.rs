@@ -129,11 +129,15 @@ impl<const N: usize> WindowDetector<N> {
         FixedMean::from_raw(u64::try_from(raw).map_err(|_| Error::OutOfRange(Param::Mean))?)
     }
 
-    /// Whether thresholds should be (re)planned: none yet, or the background
-    /// per window moved by more than 1/16 plus half a count since.
+    /// Whether thresholds should be (re)planned: none yet, the background
+    /// per window moved by more than 1/16 plus half a count since, or the
+    /// background has left the range a plan can represent (then
+    /// [`WindowDetector::refresh`] says so with an error, and the detector
+    /// must be reported as unable to arm: it never answers "no need" for
+    /// thresholds it cannot have).
     pub fn needs_refresh(&self) -> bool {
         let Ok(now) = self.background_per_window() else {
-            return false;
+            return true;
         };
         match self.thresholds {
             None => true,
@@ -142,6 +146,12 @@ impl<const N: usize> WindowDetector<N> {
     }
 
     /// Plans thresholds for the current background with the integer tier.
+    ///
+    /// Errors (thresholds in force are kept): [`Param::Mean`] when the
+    /// learned background per window exceeds [`crate::poisson::MAX_MEAN`],
+    /// and the errors of [`ThresholdPlan::thresholds`]. A detector without
+    /// thresholds whose refresh fails cannot arm; the caller must raise a
+    /// fault for it rather than wait.
     pub fn refresh(&mut self, plan: &ThresholdPlan) -> Result<LevelThresholds, Error> {
         let mean = self.background_per_window()?;
         let t = plan.thresholds(mean)?;

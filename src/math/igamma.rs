@@ -20,6 +20,7 @@
 use super::double_word::Dw;
 use super::erfcx::erfcx;
 use super::loader::{bd0_dw, ln_prefactor};
+use super::small_shape;
 use super::temme_table::{COEFFS, DEGREE, TERMS};
 use crate::Real;
 use crate::error::{Error, Param};
@@ -50,12 +51,15 @@ pub(crate) struct GammaTails<F> {
 }
 
 impl<F: Real> GammaTails<F> {
+    /// The smaller tail, never above 1/2 by more than rounding and never
+    /// outside [0, 1] (so neither P nor Q can leave [0, 1]).
     fn small(&self) -> F {
-        if self.small >= F::ZERO {
+        let v = if self.small >= F::ZERO {
             self.small
         } else {
             self.ln_small.exp()
-        }
+        };
+        if v > F::ONE { F::ONE } else { v }
     }
     /// P(a, x).
     pub(crate) fn lower(&self) -> F {
@@ -136,6 +140,18 @@ pub(crate) fn tails<F: Real>(a: F, x: F) -> Result<GammaTails<F>, Error> {
             upper_fraction(a, x)
         };
     }
+    if small_shape::in_region(a, x) {
+        let q = small_shape::upper(a, x);
+        if q <= F::HALF {
+            return Ok(GammaTails {
+                ln_small: q.ln(),
+                small: if q >= F::MIN_POSITIVE { q } else { -F::ONE },
+                small_is_upper: true,
+            });
+        }
+        // Q > 1/2: P is the small side, and its series has positive terms.
+        return lower_series(a, x);
+    }
     if x < a + F::ONE {
         lower_series(a, x)
     } else {
@@ -161,13 +177,20 @@ struct Scaled<F> {
 
 impl<F: Real> Scaled<F> {
     const STEP: i32 = 50;
+    /// Multiplies by a factor in [2^-60, 2^60] and brings the mantissa back
+    /// into [2^-50, 2^50]. From that range the product stays a normal number
+    /// even in `f32` (≥ 2^-110 > 2^-126), and the loops restore the range
+    /// whatever the factor was (one step was not enough for e^-50 ≈ 2^-72.1:
+    /// the mantissa drifted into the subnormals and the f32 tail collapsed to 0).
     fn mul(mut self, f: F) -> Self {
         self.m *= f;
         let big = F::of(1.125_899_906_842_624e15); // 2^50
-        if self.m > big {
+        let small = F::ONE / big;
+        while self.m > big {
             self.m /= big;
             self.e += Self::STEP;
-        } else if self.m < F::ONE / big {
+        }
+        while self.m < small && self.m > F::ZERO {
             self.m *= big;
             self.e -= Self::STEP;
         }
@@ -213,12 +236,13 @@ fn prefactor_product<F: Real>(a: F, x: F) -> Option<Scaled<F>> {
     if n == 0 || n > F::PRODUCT_MAX_SHAPE || F::of_u32(n) != a || x.is_nan() || x > F::of(400.0) {
         return None;
     }
-    let fifty = F::of(50.0);
     let mut r = x;
     let mut s = Scaled { m: F::ONE, e: 0 };
-    while r > fifty {
-        s = s.mul(F::of(1.928_749_847_963_917_8e-22)); // e^-50
-        r -= fifty;
+    // e^-x in steps of e^-40 (≈ 2^-57.7), factors inside the range `mul` takes.
+    let forty = F::of(40.0);
+    while r > forty {
+        s = s.mul(F::of(4.248_354_255_291_589e-18)); // e^-40
+        r -= forty;
     }
     s = s.mul((-r).exp());
     for j in 1..=n {

@@ -15,14 +15,10 @@ use crate::error::{Error, Param};
 /// Newton/bisection step bound.
 const MAX_STEPS: u32 = 200;
 
-/// Upper-tail standard normal quantile z with P(Z > z) = p, 0 < p ≤ 1/2;
-/// Abramowitz & Stegun 26.2.23 (|error| < 4.5e-4; coefficients from memory of the
-/// handbook). A starting value only: the Newton iteration does not depend on its accuracy.
-pub(crate) fn normal_upper_quantile_rough<F: Real>(p: F) -> F {
-    normal_upper_quantile_rough_ln(p.ln())
-}
-
-/// As [`normal_upper_quantile_rough`], from ln p.
+/// Upper-tail standard normal quantile z with P(Z > z) = p, 0 < p ≤ 1/2,
+/// from ln p; Abramowitz & Stegun 26.2.23 (|error| < 4.5e-4; coefficients
+/// from memory of the handbook). A starting value only: the Newton
+/// iteration does not depend on its accuracy.
 pub(crate) fn normal_upper_quantile_rough_ln<F: Real>(ln_p: F) -> F {
     let t = (-F::TWO * ln_p).sqrt();
     let num = F::of(2.515517) + t * (F::of(0.802853) + t * F::of(0.010328));
@@ -50,7 +46,16 @@ fn invert<F: Real>(a: F, p: F, lower: bool) -> Result<F, Error> {
         (-p).ln_1p()
     };
 
-    let mut x = start(a, target, upper_side);
+    // The root lies below the smallest positive float: answer 0. (Only on
+    // the lower side, where the tail vanishes as x → 0.)
+    let tiny = F::MIN_POSITIVE * F::EPSILON;
+    if !upper_side && tails(a, tiny)?.ln_lower() >= ln_target {
+        return Ok(F::ZERO);
+    }
+    let mut x = start(a, ln_target, upper_side);
+    if !(x >= tiny) {
+        x = tiny;
+    }
     let mut lo = F::ZERO;
     let mut hi = F::INFINITY;
     for _ in 0..MAX_STEPS {
@@ -62,6 +67,9 @@ fn invert<F: Real>(a: F, p: F, lower: bool) -> Result<F, Error> {
             t.ln_lower()
         };
         let g = ln_t - ln_target;
+        if g == F::ZERO {
+            return Ok(x);
+        }
         // Tail increasing in x (lower side) or decreasing (upper side).
         let too_far = if upper_side { g < F::ZERO } else { g > F::ZERO };
         if too_far {
@@ -69,23 +77,33 @@ fn invert<F: Real>(a: F, p: F, lower: bool) -> Result<F, Error> {
         } else {
             lo = x;
         }
-        // d ln T / dx = ±(density / T); density = a D(a,x) / x.
-        let ln_density = a.ln() - x.ln() + ln_prefactor(a, x);
-        let slope = (ln_density - ln_t).exp();
-        let slope = if upper_side { -slope } else { slope };
-        if g == F::ZERO {
-            return Ok(x);
-        }
-        let newton = x - g / slope;
+        // d ln T / d ln x = ±a D(a, x) / T (D the prefactor x^a e^{-x}/Γ(a+1)).
+        let slope_ln_x = (a.ln() + ln_prefactor(a, x) - ln_t).exp();
+        let slope_ln_x = if upper_side { -slope_ln_x } else { slope_ln_x };
+        // Newton on x first (quadratic, exact to 4ε relative at the end);
+        // where its step leaves the bracket, Newton on ln x (the lower tail
+        // is a power of x near 0, so this reaches tiny roots in a step or
+        // two); failing both, bisection (geometric while the bracket spans
+        // orders of magnitude).
+        let newton = x - g * x / slope_ln_x;
         if newton.is_finite() && (newton - x).abs() <= F::of(4.0) * F::EPSILON * x {
             return Ok(newton);
         }
-        x = if newton > lo && newton < hi {
+        let log_newton = (x.ln() - g / slope_ln_x).exp();
+        let inside = |v: F| v > lo && v < hi && v.is_finite();
+        x = if inside(newton) {
             newton
-        } else if hi.is_finite() {
-            F::HALF * (lo + hi)
-        } else {
+        } else if inside(log_newton) {
+            log_newton
+        } else if !hi.is_finite() {
             x + x + F::ONE
+        } else {
+            let floor = if lo > tiny { lo } else { tiny };
+            if hi > F::of(4.0) * floor {
+                (F::HALF * (floor.ln() + hi.ln())).exp()
+            } else {
+                F::HALF * (lo + hi)
+            }
         };
         if hi.is_finite() && hi - lo <= F::of(4.0) * F::EPSILON * hi {
             return Ok(x);
@@ -95,15 +113,15 @@ fn invert<F: Real>(a: F, p: F, lower: bool) -> Result<F, Error> {
 }
 
 /// Starting value for the root of (upper_side ? Q : P)(a, x) = t, t ≤ 1/2.
-fn start<F: Real>(a: F, t: F, upper_side: bool) -> F {
-    let z = normal_upper_quantile_rough(t);
+fn start<F: Real>(a: F, ln_t: F, upper_side: bool) -> F {
+    let z = normal_upper_quantile_rough_ln(ln_t);
     let z = if upper_side { z } else { -z };
     let nine_a = F::of(9.0) * a;
     let c = F::ONE - F::ONE / nine_a + z / nine_a.sqrt();
     let wh = a * c * c * c;
     if !upper_side {
         // Far lower tail: P ≈ x^a / Γ(a+1).
-        let small = ((t.ln() + (a + F::ONE).ln_gamma_abs()) / a).exp();
+        let small = ((ln_t + (a + F::ONE).ln_gamma_abs()) / a).exp();
         if wh.is_nan() || wh <= F::ZERO || small < wh * F::HALF {
             return small;
         }
@@ -113,7 +131,7 @@ fn start<F: Real>(a: F, t: F, upper_side: bool) -> F {
         wh
     } else {
         // Upper tail with a tiny shape: Q ≈ e^{-x}.
-        -t.ln()
+        -ln_t
     }
 }
 

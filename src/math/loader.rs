@@ -88,6 +88,15 @@ pub(crate) fn bd0<F: Real>(a: F, x: F) -> F {
 /// series is summed in double-word arithmetic, so the result carries about
 /// twice the type's precision (an f32 exponent near 60 to about 1e-9).
 pub(crate) fn bd0_dw<F: Real>(a: F, x: F) -> Dw<F> {
+    if !(a + x).is_finite() && a.is_finite() && x.is_finite() {
+        // bd0 is homogeneous of degree 1: halve both (exactly) so the sum
+        // a + x and the series' 2a stay finite, and double the result.
+        let h = bd0_dw(a * F::HALF, x * F::HALF);
+        return Dw {
+            hi: h.hi * F::TWO,
+            lo: h.lo * F::TWO,
+        };
+    }
     let d = a - x;
     if d.abs() < F::of(0.6) * (a + x) {
         if F::COMPENSATED_DEVIANCE {
@@ -110,7 +119,16 @@ pub(crate) fn bd0_dw<F: Real>(a: F, x: F) -> Dw<F> {
         }
         Dw::of(s)
     } else {
-        Dw::of(a * (a / x).ln() + x - a)
+        // ln(a/x) from the ratio where it is a normal number (one rounding);
+        // from the difference of logarithms where the ratio would overflow or
+        // underflow (x subnormal, a huge), which only costs digits there.
+        let r = a / x;
+        let ln_ratio = if r.is_finite() && r >= F::MIN_POSITIVE {
+            r.ln()
+        } else {
+            a.ln() - x.ln()
+        };
+        Dw::of(a * ln_ratio + x - a)
     }
 }
 

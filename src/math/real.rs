@@ -75,6 +75,8 @@ pub trait Real:
     fn ln(self) -> Self;
     /// ln(1 + x), accurate for small x.
     fn ln_1p(self) -> Self;
+    /// e^x − 1, accurate for small x.
+    fn exp_m1(self) -> Self;
     /// Square root.
     fn sqrt(self) -> Self;
     /// Absolute value.
@@ -98,7 +100,7 @@ pub trait Real:
 }
 
 macro_rules! impl_real {
-    ($t:ty, $exp:path, $ln:path, $ln1p:path, $sqrt:path, $floor:path,
+    ($t:ty, $exp:path, $expm1:path, $ln:path, $ln1p:path, $sqrt:path, $floor:path,
      $erfc:path, $lgamma:path, $terms:expr, $degree:expr, $erfcx_from:expr, $product:expr,
      $compensated:expr, $splitter:expr) => {
         impl Real for $t {
@@ -128,6 +130,10 @@ macro_rules! impl_real {
             #[inline]
             fn exp(self) -> Self {
                 $exp(self)
+            }
+            #[inline]
+            fn exp_m1(self) -> Self {
+                $expm1(self)
             }
             #[inline]
             fn ln(self) -> Self {
@@ -184,6 +190,7 @@ macro_rules! impl_real {
 impl_real!(
     f64,
     libm::exp,
+    libm::expm1,
     libm::log,
     libm::log1p,
     libm::sqrt,
@@ -200,6 +207,7 @@ impl_real!(
 impl_real!(
     f32,
     libm::expf,
+    libm::expm1f,
     libm::logf,
     libm::log1pf,
     libm::sqrtf,

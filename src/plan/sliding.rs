@@ -87,13 +87,16 @@ pub fn sliding_upcrossings_per_tick<F: Real>(
     Ok(sum * max_ln.exp())
 }
 
-/// The smallest window threshold whose upcrossing rate is at most
-/// `max_per_tick` (e.g. one per day at 1 s ticks: `1/86400`).
+/// The smallest window threshold above the window mean whose upcrossing
+/// rate is at most `max_per_tick` (e.g. one per day at 1 s ticks: `1/86400`).
 ///
-/// Starts from the per-check alarm threshold at α = `max_per_tick` (whose
-/// upcrossing rate is below its exceedance probability, so it qualifies)
-/// and bisects below it; the upcrossing rate falls as the threshold rises
-/// above the mean.
+/// An alarm threshold is a count *above* the background: levels below the
+/// window mean are crossed rarely too (the count seldom dips under them), so
+/// the search is confined to `k > bins · mean_per_tick`, where the upcrossing
+/// rate falls as `k` rises. It starts from the per-check alarm threshold at
+/// α = `max_per_tick` (whose upcrossing rate is below its exceedance
+/// probability, so it qualifies) and bisects between it and the mean; the
+/// answer's rate is checked against the target before it is returned.
 ///
 /// ```
 /// use countward::plan::{sliding_threshold, sliding_upcrossings_per_tick};
@@ -101,6 +104,9 @@ pub fn sliding_upcrossings_per_tick<F: Real>(
 /// let k = sliding_threshold(0.5_f64, 10, 1.0 / 86_400.0).unwrap();
 /// assert!(sliding_upcrossings_per_tick(0.5_f64, 10, k).unwrap() <= 1.0 / 86_400.0);
 /// assert!(sliding_upcrossings_per_tick(0.5_f64, 10, k - 1).unwrap() > 1.0 / 86_400.0);
+/// // A window mean of 1000 counts: the threshold lies above it.
+/// let k = sliding_threshold(100.0_f64, 10, 1.0 / 86_400.0).unwrap();
+/// assert!(k > 1000);
 /// ```
 pub fn sliding_threshold<F: Real>(
     mean_per_tick: F,
@@ -111,8 +117,16 @@ pub fn sliding_threshold<F: Real>(
     let target = check_open_unit(max_per_tick, Param::Alpha)?;
     let window_mean = mu * F::of_u32(bins);
     let hi = alarm_threshold(window_mean, target)?.counts;
-    // Invariant: rate(hi) <= target; find the smallest such k in [1, hi].
-    let (mut lo, mut hi) = (0u32, hi); // rate(lo) > target or lo = 0 (no level 0)
+    // The largest count not above the mean, excluded from the search (a mean
+    // beyond u32 has been refused by `alarm_threshold` already; the check
+    // keeps the conversion exact whatever that bound becomes).
+    let floor_mean = window_mean.floor();
+    if floor_mean >= F::of_u32(u32::MAX) {
+        return Err(Error::OutOfRange(Param::Mean));
+    }
+    let mut lo = floor_mean.to_u32_saturating();
+    let mut hi = hi.max(lo + 1);
+    // Invariant: rate(hi) <= target; every k in (floor(mean), lo] misses it.
     while hi - lo > 1 {
         let mid = lo + (hi - lo) / 2;
         if sliding_upcrossings_per_tick(mu, bins, mid)? <= target {
@@ -120,6 +134,9 @@ pub fn sliding_threshold<F: Real>(
         } else {
             lo = mid;
         }
+    }
+    if sliding_upcrossings_per_tick(mu, bins, hi)? > target {
+        return Err(Error::NoConvergence);
     }
     Ok(hi)
 }

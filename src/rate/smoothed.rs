@@ -46,6 +46,16 @@ pub struct SmoothedRate {
     shift: u8,
 }
 
+/// `d / 2^s` rounded to nearest (ties up): `(d + 2^(s−1)) >> s` without the
+/// sum, which overflows for `d` near `u64::MAX`; never more than `d`.
+const fn rounded_shift(d: u64, s: u8) -> u64 {
+    if s == 0 {
+        d
+    } else {
+        (d >> s) + ((d >> (s - 1)) & 1)
+    }
+}
+
 impl SmoothedRate {
     /// A ratemeter of weight `2^-shift` (`shift` at most [`MAX_SHIFT`]).
     pub const fn new(shift: u8) -> Result<Self, Error> {
@@ -90,12 +100,13 @@ impl SmoothedRate {
     pub fn update(&mut self, counts: u32) {
         self.ticks_seen = self.ticks_seen.saturating_add(1);
         let s = self.effective_shift();
-        let half = (1u64 << s) >> 1;
         let x = u64::from(counts) << 32;
+        // The step is at most the distance, so neither update can overflow,
+        // whatever the state (a settled mean may be any u64).
         if x >= self.mean_q32 {
-            self.mean_q32 += (x - self.mean_q32 + half) >> s;
+            self.mean_q32 += rounded_shift(x - self.mean_q32, s);
         } else {
-            self.mean_q32 -= (self.mean_q32 - x + half) >> s;
+            self.mean_q32 -= rounded_shift(self.mean_q32 - x, s);
         }
     }
 
