@@ -60,13 +60,16 @@ impl FixedMean {
     }
 
     /// `num / den` counts, rounded to the nearest 2^-32 (e.g. background
-    /// counts summed over `den` windows). `den = 0` is an error.
+    /// counts summed over `den` windows). `den = 0` is an error, and so is a
+    /// positive ratio below 2^-33 (it would round to a mean of 0).
     pub const fn from_ratio(num: u64, den: u64) -> Result<Self, Error> {
         if den == 0 {
             return Err(Error::OutOfRange(Param::Mean));
         }
         let q = (((num as u128) << 33) / den as u128).div_ceil(2);
-        if q > MAX_MEAN_RAW as u128 {
+        // A positive mean that rounds to 0 (below 2^-33 counts) cannot be
+        // represented: refused, never answered as a mean of 0 (p = 0).
+        if q > MAX_MEAN_RAW as u128 || (q == 0 && num > 0) {
             return Err(Error::OutOfRange(Param::Mean));
         }
         Self::from_raw(q as u64)

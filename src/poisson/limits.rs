@@ -57,5 +57,12 @@ pub fn exact_limits<F: Real>(counts: u32, level: F) -> Result<MeanLimits<F>, Err
 /// ```
 pub fn exact_upper_limit<F: Real>(counts: u32, level: F) -> Result<F, Error> {
     let level = check_open_unit(level, Param::Level)?;
-    gamma_q_inv(F::of_u32(counts) + F::ONE, F::ONE - level)
+    // Q(n + 1, u) = 1 − level, solved as P(n + 1, u) = level for small
+    // levels (1 − level rounds to 1 below ε/2 and was refused).
+    let shape = F::of_u32(counts) + F::ONE;
+    if level < F::HALF {
+        gamma_p_inv(shape, level)
+    } else {
+        gamma_q_inv(shape, F::ONE - level)
+    }
 }

@@ -137,6 +137,9 @@ pub(crate) fn pmf_positive<F: Real>(mean: F, k: u32) -> Prob<F> {
     } else {
         ln_p.exp()
     };
+    // Far out, the two factors are 0 and ∞ (f32, k near u32::MAX): their
+    // product is NaN, the probability plainly 0.
+    let p = if p.is_finite() { p } else { ln_p.exp() };
     Prob { p, ln_p }
 }
 

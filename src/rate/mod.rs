@@ -92,6 +92,9 @@ impl<F: Real> RateReading<F> {
 }
 
 /// Checks a tick period in seconds: finite and positive.
+/// Validates a tick length: 1 ns to 1e9 s (about 32 years). Outside, a rate
+/// per second would overflow or underflow for counts a u32 can hold, and a
+/// reading would be ∞ or 0 instead of an error.
 pub(crate) fn check_tick_s<F: Real>(tick_s: F) -> Result<F, Error> {
-    check_range(tick_s, F::MIN_POSITIVE, F::MAX, Param::Seconds)
+    check_range(tick_s, F::of(1e-9), F::of(1e9), Param::Seconds)
 }

@@ -12,6 +12,9 @@ of countward (src/math/small_shape.rs), computed with mpmath (PyPI package
 2. Writes tests/reference/small_shape.csv: P(a, x), Q(a, x) (regularized,
    DLMF 8.2.4) for shapes a < 1 and small-shape inverses x = P^-1(a, p),
    x = Q^-1(a, q), each to 20 significant digits, for tests/reference_vectors.rs.
+   P and Q for x < 2 come from the power series summed at 400 digits (so that
+   1 - P keeps its digits for the tiniest shapes), beyond from mpmath.gammainc;
+   the two agree to 20 digits where both are fast (checked by `--check`).
    Values are "computed (mpmath, this generator)", not published.
 """
 import csv
@@ -27,11 +30,32 @@ def coefficients():
     return out
 
 
+def p_series(a, x):
+    """P(a, x) = x^a/Gamma(a+1) * sum_n (-x)^n a/(n! (a+n)) (DLMF 8.7.1 form),
+    summed at 400 digits so that 1 - P keeps 20 digits even for a = 1e-300."""
+    with mp.workdps(400):
+        a, x = mp.mpf(a), mp.mpf(x)
+        s, term, n = mp.mpf(0), mp.mpf(1), 0
+        while True:
+            t = term * a / (a + n)
+            s += t
+            if abs(t) < mp.mpf(10) ** -390 * abs(s):
+                break
+            n += 1
+            term *= -x / n
+        pv = mp.exp(a * mp.log(x) - mp.loggamma(a + 1)) * s
+        return +pv, +(1 - pv)
+
+
 def q(a, x):
+    if x < 2:
+        return p_series(a, x)[1]
     return mp.gammainc(a, x, mp.inf, regularized=True)
 
 
 def p(a, x):
+    if x < 2:
+        return p_series(a, x)[0]
     return mp.gammainc(a, 0, x, regularized=True)
 
 
@@ -67,7 +91,7 @@ def main():
                     glo, ghi = g(lo), g(hi)
                     if glo * ghi > 0:
                         continue  # root outside [e^-2e5, e^800]: not in double range
-                    for _ in range(400):
+                    for _ in range(120):
                         mid = (lo + hi) / 2
                         gm = g(mid)
                         if (gm > 0) == (glo > 0):
@@ -78,5 +102,18 @@ def main():
                     w.writerow([kind, a, pr, mp.nstr(root, 20)])
 
 
+def check():
+    for a in ["1e-3", "0.1", "0.5", "0.9"]:
+        for x in ["1e-3", "0.3", "1.2", "1.9"]:
+            av, xv = mp.mpf(a), mp.mpf(x)
+            ref = mp.gammainc(av, xv, mp.inf, regularized=True)
+            assert abs(p_series(av, xv)[1] / ref - 1) < mp.mpf(10) ** -30, (a, x)
+    print("series and gammainc agree")
+
+
 if __name__ == "__main__":
-    main()
+    import sys
+    if "--check" in sys.argv:
+        check()
+    else:
+        main()
