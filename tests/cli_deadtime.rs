@@ -202,9 +202,13 @@ fn decay_and_intervals_on_the_example_data() {
         "9288",
         "--model",
         "paralyzable",
+        "--allow-poor-fit",
         "--json",
     ]);
     assert_eq!(v["model"], "paralyzable");
+    // The data come from a non-paralyzable counter: the paralyzable model
+    // alone is rejected by its chi-square test (refused without the flag).
+    assert_eq!(v["fits"][0]["rejected"], true);
 }
 
 #[test]

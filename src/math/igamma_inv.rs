@@ -60,7 +60,7 @@ fn invert<F: Real>(a: F, p: F, lower: bool) -> Result<F, Error> {
         return Ok(F::ZERO);
     }
     let mut x = start(a, ln_target, upper_side);
-    if !(x >= tiny) {
+    if x.is_nan() || x < tiny {
         x = tiny;
     }
     let mut lo = F::ZERO;

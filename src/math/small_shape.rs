@@ -24,7 +24,7 @@
 use crate::Real;
 
 /// Euler's constant γ (computed with mpmath to 25 digits, `tests/reference/gen_small_shape.py`).
-const EULER_GAMMA: f64 = 0.577_215_664_901_532_860_6;
+const EULER_GAMMA: f64 = 0.577_215_664_901_532_9;
 
 /// (ζ(k) − 1)/k for k = 2..40, the coefficients of A&S 6.1.33 (computed with
 /// mpmath at 50 digits by `tests/reference/gen_small_shape.py`).

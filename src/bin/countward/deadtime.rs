@@ -1,13 +1,14 @@
 //! `countward deadtime …`: correction of measured rates and bench
 //! estimation of the dead time. Every number comes from `countward::deadtime`.
 
-use super::{Failure, SAFETY, bad, check, check_non_negative, check_positive, lib, num};
+use super::{Failure, SAFETY, bad, check, check_non_negative, check_positive, lib, lib_in, num};
 use clap::{Args, Subcommand, ValueEnum};
-use countward::Error;
 use countward::deadtime::{self, DeadTime, DecayFit, DecayPoint, ModelKind};
+use countward::{Error, Param};
 use serde_json::{Value, json};
 
-use crate::csv;
+use crate::input;
+use crate::output;
 use crate::svg;
 
 #[derive(Subcommand)]
@@ -54,31 +55,75 @@ fn model_name(k: ModelKind) -> &'static str {
     }
 }
 
+/// A duration with 4 significant digits in the unit that suits it (ns, µs, ms, s).
+fn time_text(v: f64) -> String {
+    let (scale, unit) = time_unit(v);
+    format!("{} {unit}", sig(v * scale, 4))
+}
+
+/// A duration and its standard uncertainty in one unit: value to 4
+/// significant digits, uncertainty to 2, coverage stated.
+fn time_sd_text(v: f64, sd: f64) -> String {
+    let (scale, unit) = time_unit(v);
+    format!("{} ± {} {unit} (1σ)", sig(v * scale, 4), sig(sd * scale, 2))
+}
+
+fn time_unit(v: f64) -> (f64, &'static str) {
+    let a = v.abs();
+    if a >= 1.0 || a == 0.0 {
+        (1.0, "s")
+    } else if a >= 1e-3 {
+        (1e3, "ms")
+    } else if a >= 1e-6 {
+        (1e6, "µs")
+    } else {
+        (1e9, "ns")
+    }
+}
+
+/// `v` to `digits` significant digits, plain notation for moderate magnitudes.
+fn sig(v: f64, digits: i32) -> String {
+    if v == 0.0 || !v.is_finite() {
+        return format!("{v}");
+    }
+    let exp = v.abs().log10().floor() as i32;
+    if !(-4..9).contains(&exp) {
+        return format!("{:.*e}", (digits - 1).max(0) as usize, v);
+    }
+    let decimals = (digits - 1 - exp).max(0) as usize;
+    format!("{v:.decimals$}")
+}
+
+/// A rate with 4 significant digits.
+fn cps_text(v: f64) -> String {
+    format!("{} cps", sig(v, 4))
+}
+
 #[derive(Args)]
 pub struct CorrectArgs {
     /// Measured (recorded) rate, counts per second.
-    #[arg(long, value_name = "M", allow_negative_numbers = true)]
+    #[arg(long, value_name = "M", allow_hyphen_values = true)]
     measured_cps: f64,
     /// Dead time τ, seconds.
-    #[arg(long, value_name = "T", allow_negative_numbers = true)]
+    #[arg(long, value_name = "T", allow_hyphen_values = true)]
     dead_time_s: f64,
     /// Dead-time model.
     #[arg(long, value_enum)]
     model: Model,
     /// Extending fraction f of τ for the hybrid model, 0 to 1.
-    #[arg(long, value_name = "F", allow_negative_numbers = true)]
+    #[arg(long, value_name = "F", allow_hyphen_values = true)]
     paralyzable_fraction: Option<f64>,
     /// Counting time behind the measured rate, seconds: adds its standard uncertainty.
-    #[arg(long, value_name = "S", allow_negative_numbers = true)]
+    #[arg(long, value_name = "S", allow_hyphen_values = true)]
     seconds: Option<f64>,
-    /// Standard uncertainty of τ, seconds (with --seconds).
+    /// Standard uncertainty of τ, seconds (needs --seconds).
     #[arg(
         long,
         value_name = "U",
-        allow_negative_numbers = true,
-        default_value_t = 0.0
+        allow_hyphen_values = true,
+        requires = "seconds"
     )]
-    dead_time_sd_s: f64,
+    dead_time_sd_s: Option<f64>,
     /// Print one JSON object.
     #[arg(long)]
     json: bool,
@@ -87,24 +132,24 @@ pub struct CorrectArgs {
 #[derive(Args)]
 pub struct TwoSourceArgs {
     /// Measured rate of source A alone, counts per second.
-    #[arg(long, value_name = "A", allow_negative_numbers = true)]
+    #[arg(long, value_name = "A", allow_hyphen_values = true)]
     a_cps: f64,
     /// Measured rate of source B alone.
-    #[arg(long, value_name = "B", allow_negative_numbers = true)]
+    #[arg(long, value_name = "B", allow_hyphen_values = true)]
     b_cps: f64,
     /// Measured rate of A and B together.
-    #[arg(long, value_name = "AB", allow_negative_numbers = true)]
+    #[arg(long, value_name = "AB", allow_hyphen_values = true)]
     ab_cps: f64,
     /// Measured background rate (default 0).
     #[arg(
         long,
         value_name = "BG",
-        allow_negative_numbers = true,
+        allow_hyphen_values = true,
         default_value_t = 0.0
     )]
     background_cps: f64,
     /// Counting time of each of the four measurements, seconds: gives the uncertainty.
-    #[arg(long, value_name = "T", allow_negative_numbers = true)]
+    #[arg(long, value_name = "T", allow_hyphen_values = true)]
     seconds: Option<f64>,
     /// Print one JSON object.
     #[arg(long)]
@@ -117,17 +162,21 @@ pub struct DecayArgs {
     #[arg(long, value_name = "FILE.csv")]
     input: String,
     /// Half-life of the source, seconds.
-    #[arg(long, value_name = "H", allow_negative_numbers = true)]
+    #[arg(long, value_name = "H", allow_hyphen_values = true)]
     half_life_s: f64,
     /// Fit only this model (default: fit non-paralyzable and paralyzable and compare).
     #[arg(long, value_enum)]
     model: Option<Model>,
     /// Extending fraction f for --model hybrid, 0 to 1.
-    #[arg(long, value_name = "F", allow_negative_numbers = true)]
+    #[arg(long, value_name = "F", allow_hyphen_values = true)]
     paralyzable_fraction: Option<f64>,
-    /// Write an SVG chart of the data and the fitted curves.
+    /// Write an SVG chart of the data and the fitted curves (never over the input).
     #[arg(long, value_name = "FILE.svg")]
     plot: Option<String>,
+    /// Report the fits even when every model is rejected by its chi-square
+    /// test (p < 0.001 with counting times given), marked as rejected.
+    #[arg(long)]
+    allow_poor_fit: bool,
     /// Print one JSON object.
     #[arg(long)]
     json: bool,
@@ -181,11 +230,32 @@ fn correct(a: CorrectArgs) -> Result<(String, Value), Failure> {
         "must be greater than 0 (and at most 1000 s)",
     )?;
     let f = fraction(a.model, a.paralyzable_fraction)?;
-    let model = DeadTime::of_kind(a.model.kind(), tau, f).map_err(lib)?;
+    let flags = [
+        (Param::RateCps, "--measured-cps", m),
+        (Param::DeadTime, "--dead-time-s", tau),
+        (Param::Fraction, "--paralyzable-fraction", f),
+    ];
+    let model = DeadTime::of_kind(a.model.kind(), tau, f).map_err(|e| lib_in(e, &flags))?;
     let c = match model.correct(m) {
         Ok(c) => c,
         Err(Error::OutOfRange(_)) => {
             let limit = model.measured_limit_cps();
+            // Dead times are micro- to milliseconds: a τ of 10 ms or more
+            // that makes the reading impossible is most likely a unit slip.
+            if tau >= 1e-2 {
+                return Err(bad(
+                    "--dead-time-s",
+                    num(tau),
+                    &format!(
+                        "is in seconds: with τ = {} the counter could record at most {}, below --measured-cps {}; did you mean {} µs, i.e. --dead-time-s {}e-6?",
+                        time_text(tau),
+                        cps_text(limit),
+                        num(m),
+                        num(tau),
+                        num(tau)
+                    ),
+                ));
+            }
             let what = if a.model == Model::NonParalyzable {
                 "1/τ"
             } else {
@@ -193,49 +263,75 @@ fn correct(a: CorrectArgs) -> Result<(String, Value), Failure> {
             };
             return Err(bad(
                 "--measured-cps",
-                m,
+                num(m),
                 &format!(
-                    "is above the largest rate this counter can record ({} cps, {what}); it is not a reading of this model",
-                    num(limit)
+                    "is above the largest rate this counter can record ({}, {what}); it is not a reading of this model",
+                    cps_text(limit)
                 ),
             ));
         }
-        Err(e) => return Err(lib(e)),
+        Err(e) => return Err(lib_in(e, &flags)),
     };
     let mut v = json!({
         "true_cps": c.true_cps,
+        "true_rate_cps": c.true_cps,
         "true_cps_high": c.true_cps_high,
+        "true_rate_high_cps": c.true_cps_high,
         "saturated": c.saturated,
         "gain": c.gain,
+        "correction_factor": if m > 0.0 { c.true_cps / m } else { 1.0 },
+        "noise_gain": c.gain,
     });
     let mut text = format!(
-        "true rate: {} cps  ({} model, τ = {} s)",
-        num(c.true_cps),
+        "true rate: {}  ({} model, τ = {})",
+        cps_text(c.true_cps),
         model_name(a.model.kind()),
-        num(tau)
+        time_text(tau)
     );
     if let Some(t) = a.seconds {
         let t = check_positive("--seconds", t)?;
-        let sd = check_non_negative("--dead-time-sd-s", a.dead_time_sd_s)?;
-        let u = model.correct_with_uncertainty(m, t, sd).map_err(lib)?;
+        let sd = check_non_negative("--dead-time-sd-s", a.dead_time_sd_s.unwrap_or(0.0))?;
+        if sd > tau {
+            return Err(bad(
+                "--dead-time-sd-s",
+                num(sd),
+                &format!(
+                    "is larger than the dead time itself ({}); give the standard uncertainty of τ in seconds",
+                    time_text(tau)
+                ),
+            ));
+        }
+        let u = model.correct_with_uncertainty(m, t, sd).map_err(|e| {
+            lib_in(
+                e,
+                &[
+                    (Param::Seconds, "--seconds", t),
+                    (Param::DeadTime, "--dead-time-sd-s", sd),
+                    (Param::RateCps, "--measured-cps", m),
+                ],
+            )
+        })?;
         v["std_uncertainty_cps"] = json!(u.std_uncertainty_cps);
         text += &format!(
-            "\n  standard uncertainty: {} cps  (counting {} cps, dead time {} cps)",
-            num(u.std_uncertainty_cps),
-            num(u.from_counts_cps),
-            num(u.from_dead_time_cps)
+            "\n  standard uncertainty (1σ): {}  (from counting {}, from the dead time {})",
+            cps_text(u.std_uncertainty_cps),
+            cps_text(u.from_counts_cps),
+            cps_text(u.from_dead_time_cps)
         );
     }
     if let Some(h) = c.true_cps_high {
+        // The fold-back solution is physical only past the peak, i.e. in a
+        // field that the counter reads as at most its maximum while the true
+        // rate exceeds 1/(fτ): say how extreme that would be.
         text += &format!(
-            "\n  other solution (fold-back branch, above the peak): {} cps — a reading alone cannot exclude it",
-            num(h)
+            "\n  other solution (fold-back branch, past the counter's peak): {} — only if the field can be that strong; a reading alone cannot exclude it, an independent instrument can",
+            cps_text(h)
         );
     }
     if c.saturated {
         text += &format!(
             "\n  SATURATED: the correction amplifies counting noise {}-fold here; treat the reading as over-range",
-            num(c.gain)
+            sig(c.gain, 3)
         );
     }
     Ok((text, v))
@@ -253,21 +349,44 @@ fn two_source(a: TwoSourceArgs) -> Result<(String, Value), Failure> {
         None => None,
     };
     let r = deadtime::two_source(m1, m2, m12, mb, t).map_err(|e| match e {
+        Error::OutOfRange(_) | Error::NotFinite(_) => lib_in(
+            e,
+            &[
+                (Param::Seconds, "--seconds", t.unwrap_or(f64::NAN)),
+            ],
+        ),
         Error::NotDetermined(_) => Failure(
             "error: these rates cannot determine the dead time (no significant loss: A + B − AB − background must clearly exceed 0; try stronger sources or longer counts)".into(),
         ),
         e => lib(e),
     })?;
-    let unc = r
-        .std_uncertainty_s
-        .map_or("(give --seconds for its uncertainty)".to_string(), |u| {
-            format!("± {} s", num(u))
-        });
+    let main = match r.std_uncertainty_s {
+        Some(u) => time_sd_text(r.dead_time_s, u),
+        None => format!(
+            "{} (give --seconds for its uncertainty)",
+            time_text(r.dead_time_s)
+        ),
+    };
+    // An approximation is reported as valid only where it agrees with the
+    // exact solution to 5 %; otherwise it is shown as invalid at these losses.
+    let judged = |v: f64| {
+        let off = (v / r.dead_time_s - 1.0).abs();
+        if off <= 0.05 {
+            format!("{} ({} % from exact)", time_text(v), sig(off * 100.0, 2))
+        } else {
+            format!(
+                "{} (NOT valid at these losses: {} % from exact)",
+                time_text(v),
+                sig(off * 100.0, 2)
+            )
+        }
+    };
+    let loss = m12 * r.dead_time_s; // 1 − m/n for a non-paralyzable counter
     let text = format!(
-        "dead time: {} s {unc}  (exact two-source solution, non-paralyzable)\n  approximations: {} s (small-loss, with background), {} s (simple, no background)",
-        num(r.dead_time_s),
-        num(r.first_order_s),
-        num(r.simple_s)
+        "dead time: {main}  (exact two-source solution, non-paralyzable; count loss at A+B {} %)\n  approximations: small-loss with background {}; simple without background {}",
+        sig(loss * 100.0, 2),
+        judged(r.first_order_s),
+        judged(r.simple_s)
     );
     Ok((
         text,
@@ -276,39 +395,67 @@ fn two_source(a: TwoSourceArgs) -> Result<(String, Value), Failure> {
             "std_uncertainty_s": r.std_uncertainty_s,
             "first_order_s": r.first_order_s,
             "simple_s": r.simple_s,
+            "first_order_valid": (r.first_order_s / r.dead_time_s - 1.0).abs() <= 0.05,
+            "simple_valid": (r.simple_s / r.dead_time_s - 1.0).abs() <= 0.05,
         }),
     ))
 }
 
 fn decay(a: DecayArgs) -> Result<(String, Value), Failure> {
     let half = check_positive("--half-life-s", a.half_life_s)?;
-    let table = csv::read(&a.input, &["time_s", "measured_cps"], &["counting_s"])
-        .map_err(|e| Failure(e.join("\n")))?;
-    let mut errors = table.errors.clone();
-    let mut points = Vec::new();
-    for (line, v) in &table.rows {
-        let (t, m, c) = (v[0].unwrap_or(f64::NAN), v[1].unwrap_or(f64::NAN), v[2]);
-        if m <= 0.0 {
-            errors.push(format!(
-                "error: {} line {line}: measured_cps {m} must be greater than 0",
-                a.input
-            ));
-        } else if c.is_some_and(|c| c <= 0.0) {
-            errors.push(format!(
-                "error: {} line {line}: counting_s must be greater than 0",
-                a.input
-            ));
-        } else {
+    if let Some(plot) = &a.plot {
+        // Refused before the work, not after it.
+        output::check_not_input("--plot", plot, &[("--input", &a.input)])?;
+    }
+    let mut points: Vec<DecayPoint<f64>> = Vec::new();
+    let mut lines: Vec<u64> = Vec::new();
+    input::read_each(
+        "--input",
+        &a.input,
+        &["time_s", "measured_cps"],
+        &["counting_s"],
+        |line, v| {
+            let (t, m, c) = (v[0].unwrap_or(f64::NAN), v[1].unwrap_or(f64::NAN), v[2]);
+            if m <= 0.0 {
+                return Err(format!("measured_cps {m} must be greater than 0"));
+            }
+            if c.is_some_and(|c| c <= 0.0) {
+                return Err("counting_s must be greater than 0".into());
+            }
             points.push(DecayPoint {
                 time_s: t,
                 measured_cps: m,
                 counting_s: c,
             });
+            lines.push(line);
+            Ok(())
+        },
+    )
+    .map_err(Failure)?;
+    // Two measurements at one time are a copy-paste slip, not data.
+    let mut order: Vec<u32> = (0..points.len() as u32).collect();
+    if points.windows(2).any(|w| w[1].time_s <= w[0].time_s) {
+        order.sort_by(|&i, &j| {
+            points[i as usize]
+                .time_s
+                .total_cmp(&points[j as usize].time_s)
+        });
+        let mut problems = input::Problems::default();
+        for w in order.windows(2) {
+            let (i, j) = (w[0] as usize, w[1] as usize);
+            if points[i].time_s == points[j].time_s {
+                let (first, second) = (lines[i].min(lines[j]), lines[i].max(lines[j]));
+                problems.push(format!(
+                    "error: {} line {second}: time_s {} repeats line {first} (two measurements at one time)",
+                    a.input, points[i].time_s
+                ));
+            }
+        }
+        if !problems.is_empty() {
+            return Err(Failure(problems.message()));
         }
     }
-    if !errors.is_empty() {
-        return Err(Failure(errors.join("\n")));
-    }
+    drop(order);
     let kinds: Vec<(ModelKind, f64)> = match a.model {
         Some(m) => vec![(m.kind(), fraction(m, a.paralyzable_fraction)?)],
         None => {
@@ -330,6 +477,9 @@ fn decay(a: DecayArgs) -> Result<(String, Value), Failure> {
     for (k, f) in &kinds {
         match deadtime::fit_decay(&points, half, *k, *f) {
             Ok(fit) => fits.push(fit),
+            Err(e @ (Error::OutOfRange(Param::Seconds) | Error::NotFinite(Param::Seconds))) => {
+                return Err(lib_in(e, &[(Param::Seconds, "--half-life-s", half)]));
+            }
             Err(e) => failures.push((*k, e)),
         }
     }
@@ -346,18 +496,49 @@ fn decay(a: DecayArgs) -> Result<(String, Value), Failure> {
         .min_by(|x, y| x.chi2.total_cmp(&y.chi2))
         .copied()
         .expect("at least one fit");
+    // Goodness of fit: with counting times the weights are absolute and
+    // chi2 follows a chi-square law with `dof` degrees of freedom under the
+    // model; p < 0.001 rejects it.
+    let fit_p = |fit: &DecayFit<f64>| -> Option<f64> {
+        (fit.weighted_by_counts && fit.dof > 0)
+            .then(|| countward::math::gamma_q(f64::from(fit.dof) / 2.0, fit.chi2 / 2.0).ok())
+            .flatten()
+    };
+    let rejected = |fit: &DecayFit<f64>| fit_p(fit).is_some_and(|p| p < 1e-3);
+    if fits.iter().all(rejected) && !a.allow_poor_fit {
+        let worst: Vec<String> = fits
+            .iter()
+            .map(|f| {
+                format!(
+                    "{} chi2/dof = {}",
+                    model_name(f.model.kind()),
+                    sig(f.chi2 / f64::from(f.dof), 3)
+                )
+            })
+            .collect();
+        return Err(Failure(format!(
+            "error: --input {}: no dead-time model fits these data ({}; p < 0.001): the rates do not follow a decaying source seen through a dead time (check --half-life-s, the units, and the data); --allow-poor-fit prints the rejected fits",
+            a.input,
+            worst.join(", ")
+        )));
+    }
     let mut text = String::new();
     let mut fit_values = Vec::new();
     for fit in &fits {
         let name = model_name(fit.model.kind());
         let residuals: Vec<f64> = points.iter().map(|p| fit.residual(p)).collect();
+        let p = fit_p(fit);
+        let verdict = match p {
+            Some(p) if p < 1e-3 => format!(", p = {} — MODEL REJECTED", sig(p, 2)),
+            Some(p) => format!(", p = {}", sig(p, 2)),
+            None => String::new(),
+        };
         text += &format!(
-            "{name}: dead time {} s ± {} s, initial true rate {} ± {} cps, chi2 {} for {} degrees of freedom\n",
-            num(fit.dead_time_s),
-            num(fit.dead_time_sd_s),
-            num(fit.initial_cps),
-            num(fit.initial_sd_cps),
-            num(fit.chi2),
+            "{name}: dead time {}, initial true rate {} ± {} (1σ), chi2 {} for {} degrees of freedom{verdict}\n",
+            time_sd_text(fit.dead_time_s, fit.dead_time_sd_s),
+            cps_text(fit.initial_cps),
+            sig(fit.initial_sd_cps, 2),
+            sig(fit.chi2, 4),
             fit.dof
         );
         fit_values.push(json!({
@@ -368,6 +549,8 @@ fn decay(a: DecayArgs) -> Result<(String, Value), Failure> {
             "initial_sd_cps": fit.initial_sd_cps,
             "chi2": fit.chi2,
             "dof": fit.dof,
+            "fit_p_value": p,
+            "rejected": p.is_some_and(|p| p < 1e-3),
             "residuals": residuals,
         }));
     }
@@ -396,9 +579,9 @@ fn decay(a: DecayArgs) -> Result<(String, Value), Failure> {
             .zip(colours)
             .map(|(fit, colour)| svg::Curve {
                 label: format!(
-                    "{} (τ = {} s)",
+                    "{} (τ = {})",
                     model_name(fit.model.kind()),
-                    num(fit.dead_time_s)
+                    time_text(fit.dead_time_s)
                 ),
                 colour,
                 points: (0..=200)
@@ -416,7 +599,7 @@ fn decay(a: DecayArgs) -> Result<(String, Value), Failure> {
             &data,
             &curves,
         );
-        std::fs::write(path, chart).map_err(|e| Failure(format!("error: --plot {path}: {e}")))?;
+        output::write("--plot", path, &chart, &[("--input", &a.input)])?;
         text += &format!("\nplot written to {path}");
     }
     Ok((
@@ -432,26 +615,27 @@ fn decay(a: DecayArgs) -> Result<(String, Value), Failure> {
 }
 
 fn intervals(a: IntervalsArgs) -> Result<(String, Value), Failure> {
-    let table = csv::read(&a.input, &["timestamp_s"], &[]).map_err(|e| Failure(e.join("\n")))?;
-    let mut stamps = Vec::with_capacity(table.rows.len());
-    let mut errors = table.errors.clone();
-    let mut previous: Option<(usize, f64)> = None;
-    for (line, v) in &table.rows {
+    let mut stamps: Vec<f64> = Vec::new();
+    let mut previous: Option<(u64, f64)> = None;
+    input::read_each("--input", &a.input, &["timestamp_s"], &[], |line, v| {
         let t = v[0].unwrap_or(f64::NAN);
-        if let Some((pl, pt)) = previous
-            && t < pt
-        {
-            errors.push(format!(
-                "error: {} line {line}: timestamp_s {t} is earlier than {pt} on line {pl} (time stamps must not decrease)",
-                a.input
-            ));
+        if let Some((pl, pt)) = previous {
+            if t < pt {
+                return Err(format!(
+                    "timestamp_s {t} is earlier than {pt} on line {pl} (time stamps must not decrease)"
+                ));
+            }
+            if t == pt {
+                return Err(format!(
+                    "timestamp_s {t} repeats line {pl}: a counter with dead time cannot record two events at one instant (time stamps too coarse, or a duplicated line)"
+                ));
+            }
         }
-        previous = Some((*line, t));
+        previous = Some((line, t));
         stamps.push(t);
-    }
-    if !errors.is_empty() {
-        return Err(Failure(errors.join("\n")));
-    }
+        Ok(())
+    })
+    .map_err(Failure)?;
     let fit = deadtime::fit_intervals(&stamps).map_err(|e| match e {
         Error::NotDetermined(countward::Param::Data) => Failure(format!(
             "error: --input {}: too few time stamps to determine the dead time (need at least 21)",
@@ -464,14 +648,13 @@ fn intervals(a: IntervalsArgs) -> Result<(String, Value), Failure> {
         e => lib(e),
     })?;
     let text = format!(
-        "dead time: {} s ± {} s  (from the shortest of {} intervals; true rate {} cps if non-paralyzable)\n  shape beyond τ: chi2 {} for {} degrees of freedom, p = {}{}",
-        num(fit.dead_time_s),
-        num(fit.std_uncertainty_s),
+        "dead time: {}  (from the shortest of {} intervals; true rate {} if non-paralyzable)\n  shape beyond τ: chi2 {} for {} degrees of freedom, p = {}{}",
+        time_sd_text(fit.dead_time_s, fit.std_uncertainty_s),
         fit.intervals,
-        num(fit.true_rate_cps),
-        num(fit.shape_chi2),
+        cps_text(fit.true_rate_cps),
+        sig(fit.shape_chi2, 4),
         fit.shape_dof,
-        num(fit.shape_p_value),
+        sig(fit.shape_p_value, 2),
         if fit.shape_p_value < 0.01 {
             "  (NOT a shifted exponential: check the counter model, afterpulses or the source)"
         } else {

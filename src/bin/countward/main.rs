@@ -6,12 +6,13 @@ use clap::error::{ContextKind, ContextValue, ErrorKind};
 use clap::{Args, Parser, Subcommand, ValueEnum};
 use countward::fixed::{FixedAlpha, FixedMean};
 use countward::poisson::{self, MAX_MEAN};
-use countward::{Error, gap};
+use countward::{Error, Param, gap};
 use serde_json::{Value, json};
 use std::process::ExitCode;
 
-mod csv;
 mod deadtime;
+mod input;
+mod output;
 mod svg;
 
 const SAFETY: &str = "Safety: radiation alarms protect people. Settings computed here must be validated \
@@ -30,13 +31,17 @@ struct Cli {
 #[derive(Subcommand)]
 enum Command {
     /// Poisson tail probability P(N >= K) or P(N <= K) for a mean.
+    #[command(after_help = SAFETY)]
     Tail(TailArgs),
     /// Alarm threshold (smallest n with P(N >= n) <= alpha) or, with --low,
     /// fault threshold (largest n with P(N <= n) <= alpha).
+    #[command(after_help = SAFETY)]
     Threshold(ThresholdArgs),
     /// Exact (Garwood) confidence limits on a Poisson mean from observed counts.
+    #[command(after_help = SAFETY)]
     Limits(LimitsArgs),
     /// Silence threshold: shortest time after which fewer than K events is improbable at alpha.
+    #[command(after_help = SAFETY)]
     Silence(SilenceArgs),
     /// Dead time: correct measured rates, and measure τ on the bench.
     #[command(subcommand, after_help = SAFETY)]
@@ -58,13 +63,13 @@ enum Math {
 #[command(group(clap::ArgGroup::new("side").required(true).args(["at_least", "at_most"])))]
 struct TailArgs {
     /// Expected counts (Poisson mean), 0 to 2e9.
-    #[arg(long, value_name = "M", allow_negative_numbers = true)]
+    #[arg(long, value_name = "M", allow_hyphen_values = true)]
     mean: f64,
     /// Probability of K or more counts.
-    #[arg(long, value_name = "K", allow_negative_numbers = true)]
+    #[arg(long, value_name = "K", allow_hyphen_values = true)]
     at_least: Option<u32>,
     /// Probability of K or fewer counts.
-    #[arg(long, value_name = "K", allow_negative_numbers = true)]
+    #[arg(long, value_name = "K", allow_hyphen_values = true)]
     at_most: Option<u32>,
     /// Arithmetic tier.
     #[arg(long, value_enum, default_value = "f64")]
@@ -77,10 +82,10 @@ struct TailArgs {
 #[derive(Args)]
 struct ThresholdArgs {
     /// Expected background counts per check (Poisson mean), 0 to 2e9.
-    #[arg(long, value_name = "M", allow_negative_numbers = true)]
+    #[arg(long, value_name = "M", allow_hyphen_values = true)]
     mean: f64,
     /// False-alarm probability per check, strictly between 0 and 1.
-    #[arg(long, value_name = "A", allow_negative_numbers = true)]
+    #[arg(long, value_name = "A", allow_hyphen_values = true)]
     alpha: f64,
     /// Compute the fault (too few counts) threshold instead of the alarm threshold.
     #[arg(long)]
@@ -96,10 +101,10 @@ struct ThresholdArgs {
 #[derive(Args)]
 struct LimitsArgs {
     /// Observed counts.
-    #[arg(long, value_name = "N", allow_negative_numbers = true)]
+    #[arg(long, value_name = "N", allow_hyphen_values = true)]
     counts: u32,
     /// Confidence level, strictly between 0 and 1 (e.g. 0.95).
-    #[arg(long, value_name = "L", allow_negative_numbers = true)]
+    #[arg(long, value_name = "L", allow_hyphen_values = true)]
     level: f64,
     /// One-sided upper limit (lower is 0).
     #[arg(long)]
@@ -112,17 +117,17 @@ struct LimitsArgs {
 #[derive(Args)]
 struct SilenceArgs {
     /// Event rate in counts per second (> 0).
-    #[arg(long, value_name = "R", allow_negative_numbers = true)]
+    #[arg(long, value_name = "R", allow_hyphen_values = true)]
     rate_cps: f64,
     /// Probability that a live source stays this quiet, strictly between 0 and 1.
-    #[arg(long, value_name = "A", allow_negative_numbers = true)]
+    #[arg(long, value_name = "A", allow_hyphen_values = true)]
     alpha: f64,
     /// Wait for the K-th event (default 1: any event).
     #[arg(
         long,
         value_name = "K",
         default_value_t = 1,
-        allow_negative_numbers = true
+        allow_hyphen_values = true
     )]
     events: u32,
     /// Print one JSON object.
@@ -188,12 +193,49 @@ fn check_f32(flag: &str, v: f64) -> Result<(), Failure> {
     Ok(())
 }
 
+/// A library error in the user's words: the flag and the value typed for
+/// the parameter at fault (from `flags`), never an internal name.
+fn lib_in(e: Error, flags: &[(Param, &str, f64)]) -> Failure {
+    let why = match e {
+        Error::NotFinite(_) => "must be a finite number",
+        Error::OutOfRange(_) => "is outside the range this calculation supports",
+        Error::NotDetermined(_) => "cannot be determined from these inputs",
+        Error::NoConvergence => {
+            return Failure(
+                "error: an iteration did not converge; this is a defect of countward (please report the command line)".into(),
+            );
+        }
+        _ => "was refused",
+    };
+    match e.param().and_then(|p| flags.iter().find(|f| f.0 == p)) {
+        Some((_, flag, value)) => bad(flag, num(*value), why),
+        None => {
+            let all: Vec<String> = flags
+                .iter()
+                .map(|f| format!("{} {}", f.1, num(f.2)))
+                .collect();
+            Failure(format!(
+                "error: the inputs ({}) are outside the range this calculation supports",
+                all.join(", ")
+            ))
+        }
+    }
+}
+
+/// A library error of a call whose inputs the command validated itself.
 fn lib(e: Error) -> Failure {
-    Failure(format!("error: {e}"))
+    lib_in(e, &[])
 }
 
 /// Human-readable number: plain for moderate magnitudes, exponent otherwise.
 fn num(v: f64) -> String {
+    // At most 10 significant digits: enough for every figure the tool
+    // prints, and no binary noise such as 9.999999999999999e-19.
+    let v = if v.is_finite() && v != 0.0 {
+        format!("{v:.9e}").parse::<f64>().unwrap_or(v)
+    } else {
+        v
+    };
     let a = v.abs();
     if v == 0.0 || (1e-4..1e6).contains(&a) {
         format!("{v}")
@@ -339,10 +381,10 @@ fn limits(a: LimitsArgs) -> Result<(String, Value), Failure> {
     let (lower, upper) = if a.one_sided {
         (
             0.0,
-            poisson::exact_upper_limit(a.counts, level).map_err(lib)?,
+            poisson::exact_upper_limit(a.counts, level).map_err(|e| level_error(e, level))?,
         )
     } else {
-        let l = poisson::exact_limits(a.counts, level).map_err(lib)?;
+        let l = poisson::exact_limits(a.counts, level).map_err(|e| level_error(e, level))?;
         (l.lower, l.upper)
     };
     let kind = if a.one_sided {
@@ -351,7 +393,7 @@ fn limits(a: LimitsArgs) -> Result<(String, Value), Failure> {
         "two-sided"
     };
     let text = format!(
-        "{} counts, {kind} {}%: mean between {} and {}",
+        "{} counts, {kind} {} %: mean between {} and {}",
         a.counts,
         num(level * 100.0),
         num(lower),
@@ -360,13 +402,33 @@ fn limits(a: LimitsArgs) -> Result<(String, Value), Failure> {
     Ok((text, json!({ "lower": lower, "upper": upper })))
 }
 
+fn level_error(e: Error, level: f64) -> Failure {
+    lib_in(
+        e,
+        &[
+            (Param::Level, "--level", level),
+            (Param::Probability, "--level", level),
+        ],
+    )
+}
+
 fn silence(a: SilenceArgs) -> Result<(String, Value), Failure> {
     let rate = check_positive("--rate-cps", a.rate_cps)?;
     let alpha = check_open("--alpha", a.alpha)?;
     if a.events == 0 {
         return Err(bad("--events", 0, "must be at least 1"));
     }
-    let t = gap::silence_threshold_s(rate, alpha, a.events).map_err(lib)?;
+    let t = gap::silence_threshold_s(rate, alpha, a.events).map_err(|e| {
+        lib_in(
+            e,
+            &[
+                (Param::RateCps, "--rate-cps", rate),
+                (Param::Alpha, "--alpha", alpha),
+                (Param::Probability, "--alpha", alpha),
+                (Param::Events, "--events", f64::from(a.events)),
+            ],
+        )
+    })?;
     let what = if a.events == 1 {
         "no event".to_string()
     } else {
@@ -380,6 +442,35 @@ fn silence(a: SilenceArgs) -> Result<(String, Value), Failure> {
         num(alpha)
     );
     Ok((text, json!({ "seconds": t })))
+}
+
+/// A short usage line and the commands, for a command line without one.
+fn short_usage(e: &clap::Error) -> String {
+    let rendered = e.render().to_string();
+    // The first "Usage:" line of clap's help, then the command names.
+    let usage = rendered
+        .lines()
+        .find(|l| l.starts_with("Usage:"))
+        .unwrap_or("Usage: countward <COMMAND>")
+        .to_string();
+    let cmd = <Cli as clap::CommandFactory>::command();
+    let path: Vec<String> = std::env::args()
+        .skip(1)
+        .filter(|a| !a.starts_with('-'))
+        .collect();
+    let mut node = &cmd;
+    for p in &path {
+        match node.find_subcommand(p) {
+            Some(c) => node = c,
+            None => break,
+        }
+    }
+    let names: Vec<&str> = node
+        .get_subcommands()
+        .map(|c| c.get_name())
+        .filter(|n| *n != "help")
+        .collect();
+    format!("{usage}\ncommands: {}\n(--help for more)", names.join(", "))
 }
 
 /// Flattens a clap error to one line naming what was wrong.
@@ -406,7 +497,7 @@ fn main() -> ExitCode {
                 return ExitCode::SUCCESS;
             }
             if e.kind() == ErrorKind::DisplayHelpOnMissingArgumentOrSubcommand {
-                let _ = e.print();
+                eprintln!("{}", short_usage(&e));
                 return ExitCode::from(2);
             }
             eprintln!("{}", one_line(&e));
