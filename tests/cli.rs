@@ -137,7 +137,7 @@ fn limits_and_silence_json() {
     assert!((json_number(&out, "seconds").unwrap() - 19.129168).abs() < 1e-6);
     let (code, out, _) = run(&["silence", "--rate-cps", "0.5", "--alpha", "1e-3"]);
     assert_eq!(code, 0);
-    assert!(out.contains("13.815510557964"), "{out}"); // -ln(1e-3)/0.5
+    assert!(out.contains("13.81551056 s"), "{out}"); // -ln(1e-3)/0.5 = 13.815510557964, 10 significant digits
 }
 
 #[test]
