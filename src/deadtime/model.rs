@@ -56,7 +56,9 @@ pub struct Correction<F> {
     pub true_cps: F,
     /// The other solution, above the rate of the maximum (fold-back branch)
     /// of a paralyzable or hybrid counter; `None` for a non-paralyzable
-    /// counter (one solution) and for a zero reading.
+    /// counter (one solution), for a zero reading, and where the fold-back
+    /// root lies beyond the float range (τ within a few hundred powers of ten
+    /// of the smallest float).
     pub true_cps_high: Option<F>,
     /// `d ln n / d ln m` on the low branch: by how much the correction
     /// multiplies the relative uncertainty of the measured rate.
@@ -219,11 +221,18 @@ impl<F: Real> DeadTime<F> {
                     let x = if -x > limit { -limit } else { x };
                     let lo = -lambert_w0(x)? / tau;
                     let hi = -lambert_wm1(x)? / tau;
-                    (lo, Some(hi))
+                    // For τ near the bottom of the float range the fold-back
+                    // solution lies beyond it: no representable second root.
+                    (lo, hi.is_finite().then_some(hi))
                 }
             }
             _ => self.hybrid_inverse(m)?,
         };
+        // A true rate beyond the float range is no reading (τ and m near the
+        // ends of the range).
+        if !low.is_finite() {
+            return Err(Error::OutOfRange(Param::RateCps));
+        }
         let slope = self.log_slope(low);
         let gain = if slope > F::ZERO {
             F::ONE / slope
@@ -251,22 +260,23 @@ impl<F: Real> DeadTime<F> {
             return Ok((n_peak, Some(n_peak)));
         }
         let low = self.solve_branch(m, m, n_peak, true)?;
-        // The high branch: bracket by doubling beyond the peak.
+        // The high branch: bracket by doubling beyond the peak. Where the
+        // bracket would leave the float range (τ near its bottom), the
+        // fold-back root is not representable: no second solution.
         let mut hi = n_peak * F::TWO;
-        let mut steps = 0;
-        while self.forward(hi) > m {
-            hi *= F::TWO;
-            steps += 1;
-            if steps > 2000 || !hi.is_finite() {
-                return Err(Error::NoConvergence);
+        loop {
+            if !hi.is_finite() {
+                return Ok((low, None));
             }
+            if self.forward(hi) <= m {
+                break;
+            }
+            hi *= F::TWO; // at most ~2100 doublings from a positive normal
         }
         let high = self.solve_branch(m, n_peak, hi, false)?;
         Ok((low, Some(high)))
     }
 
-    /// Solves `ln m(n) = ln m` on `[lo, hi]`, where `m(n) − m` changes sign
-    /// once: Newton steps in `n` kept inside a shrinking bracket.
     /// The root of `forward(n) = m` in `[lo, hi]`, where `ln forward − ln m`
     /// rises (`rising`: the low branch) or falls (the high branch). The
     /// direction is known, not read off `g(lo)`: next to the peak `g(lo)` is
@@ -282,7 +292,7 @@ impl<F: Real> DeadTime<F> {
             if lo > F::ZERO && hi > F::of(4.0) * lo {
                 lo.sqrt() * hi.sqrt()
             } else {
-                (lo + hi) * F::HALF
+                lo + (hi - lo) * F::HALF // (lo + hi) overflows near MAX
             }
         };
         let mut n = mid(lo, hi);

@@ -88,7 +88,7 @@ impl CusumConfig {
         let reference = (k * s + F::HALF).floor();
         // A reference of 0 on the lattice is no CUSUM: an increase scheme
         // would only ever grow, a decrease scheme never leave 0.
-        if reference < F::ONE {
+        if reference.is_nan() || reference < F::ONE {
             return Err(Error::OutOfRange(Param::Scale));
         }
         let decision = (h * s + F::HALF).floor();
@@ -145,8 +145,12 @@ impl CusumConfig {
 /// every digit for means a few ulps apart).
 fn logarithmic_mean<F: Real>(m0: F, m1: F) -> F {
     let d = (m1 - m0) / m0;
-    let ratio = d / d.ln_1p(); // → 1 + d/2 as d → 0; d ≠ 0 here
-    let k = m0 * ratio;
+    let k = if d.abs() <= F::ONE {
+        m0 * (d / d.ln_1p()) // → m0 (1 + d/2) as d → 0; d ≠ 0 here
+    } else {
+        // Far apart (the relative step may even overflow): no cancellation.
+        (m1 - m0) / (m1.ln() - m0.ln())
+    };
     // Rounding cannot leave [min, max] by more than an ulp; clamp it back.
     let (lo, hi) = if m0 < m1 { (m0, m1) } else { (m1, m0) };
     if k < lo {

@@ -103,13 +103,22 @@ fn invert<F: Real>(a: F, p: F, lower: bool) -> Result<F, Error> {
         } else if inside(log_newton) {
             log_newton
         } else if !hi.is_finite() {
-            x + x + F::ONE
+            // Grow toward the root; a root past the largest float (shapes
+            // near the top of the range) is refused, never returned as ∞.
+            if x >= F::MAX * F::HALF {
+                if x == F::MAX {
+                    return Err(Error::OutOfRange(Param::Probability));
+                }
+                F::MAX
+            } else {
+                x + x + F::ONE
+            }
         } else {
             let floor = if lo > tiny { lo } else { tiny };
             if hi > F::of(4.0) * floor {
                 (F::HALF * (floor.ln() + hi.ln())).exp()
             } else {
-                F::HALF * (lo + hi)
+                lo + F::HALF * (hi - lo) // no overflow near MAX
             }
         };
         if hi.is_finite() && hi - lo <= F::of(4.0) * F::EPSILON * hi {

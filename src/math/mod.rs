@@ -37,7 +37,7 @@ pub use real::Real;
 
 use crate::error::{Error, Param};
 
-/// ln Γ(x) for x > 0.
+/// ln Γ(x) for x > 0 (an error where it overflows: x ≳ 2.6e305 in f64).
 ///
 /// Method: the FreeBSD msun / musl `lgamma` algorithm (rational
 /// approximations on [2, 3], reduction by recurrence, Stirling's series for
@@ -58,5 +58,10 @@ pub fn ln_gamma<F: Real>(x: F) -> Result<F, Error> {
     if x <= F::ZERO {
         return Err(Error::OutOfRange(Param::X));
     }
-    Ok(x.ln_gamma_abs())
+    // ln Γ(x) overflows beyond x ≈ 2.6e305 (f64) or 2e36 (f32).
+    let v = x.ln_gamma_abs();
+    if !v.is_finite() {
+        return Err(Error::OutOfRange(Param::X));
+    }
+    Ok(v)
 }

@@ -62,6 +62,16 @@ pub fn at_least<F: Real>(mean: F, k: u32) -> Result<Prob<F>, Error> {
     if mean == F::ZERO {
         return Ok(Prob::impossible());
     }
+    if k == 1 {
+        // P(N ≥ 1) = 1 − e^{−μ}, exactly rounded by expm1.
+        let p = -(-mean).exp_m1();
+        let ln_p = if p >= F::MIN_POSITIVE {
+            p.ln()
+        } else {
+            mean.ln()
+        };
+        return Ok(Prob { p, ln_p });
+    }
     let t = tails(F::of_u32(k), mean)?;
     Ok(Prob {
         p: t.lower(),

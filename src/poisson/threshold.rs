@@ -25,9 +25,14 @@ use crate::search::{bisect, bracket};
 /// Brackets narrower than this are finished by the recurrence walk.
 const WALK_WIDTH: i64 = 64;
 
-/// Whether linear probabilities near α stay well inside the normal range.
-fn walkable<F: Real>(ln_alpha: F) -> bool {
-    ln_alpha > F::MIN_POSITIVE.ln() + F::of(60.0)
+/// Whether the linear recurrence walk may finish the search: probabilities
+/// near α well inside the normal range, and α at most 1/2. Above 1/2 the
+/// tails being summed are near 1, where a linear sum resolves nothing finer
+/// than ε while 1 − α may be that small (f32 at α = 0.99999994 accepted a
+/// count 1 whose tail is 1 − 2e-12); the search then compares logarithms,
+/// whose near-1 side comes from `ln_1p` of the small complement.
+fn walkable<F: Real>(alpha: F, ln_alpha: F) -> bool {
+    alpha <= F::HALF && ln_alpha > F::MIN_POSITIVE.ln() + F::of(60.0)
 }
 
 /// Whether a walk may start from this tail: within e^40 of α, so that it and
@@ -87,7 +92,7 @@ pub fn alarm_threshold<F: Real>(mean: F, alpha: F) -> Result<CountThreshold<F>, 
     let ln_alpha = alpha.ln();
     let (g, stride) = guess(mean, alpha, ln_alpha, true);
     let start = g.saturating_add(1);
-    let walk = walkable(ln_alpha);
+    let walk = walkable(alpha, ln_alpha);
     if walk {
         // Usually the start is accepted and within a few counts of the answer.
         let (tail, p) = start_upper(mean, start)?;
@@ -216,7 +221,7 @@ pub fn fault_threshold<F: Real>(mean: F, alpha: F) -> Result<Option<CountThresho
         return Ok(None);
     }
     let (g, stride) = guess(mean, alpha, ln_alpha, false);
-    let walk = walkable(ln_alpha);
+    let walk = walkable(alpha, ln_alpha);
     if walk {
         let (tail, p) = start_lower(mean, g)?;
         if tail <= alpha && near(tail, alpha) {
