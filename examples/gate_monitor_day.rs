@@ -179,8 +179,19 @@ fn main() -> Result<(), countward::Error> {
                     reading.seconds
                 )
             };
+            // A fault shows on every line a person reads while it lasts.
+            let faults: Vec<String> = Fault::ALL
+                .iter()
+                .filter(|f| machine.active_faults().contains(**f))
+                .map(|f| f.to_string())
+                .collect();
+            let fault_note = if faults.is_empty() {
+                String::new()
+            } else {
+                format!("; FAULT: {}", faults.join(", "))
+            };
             println!(
-                "{}  reading {:<58} level {:?}, latched {:?}",
+                "{}  reading {:<58} level {}, latched {}{fault_note}",
                 hms(t),
                 shown,
                 machine.active(),
@@ -189,7 +200,7 @@ fn main() -> Result<(), countward::Error> {
         }
     }
     println!(
-        "\nend of day: {} events dropped from the queue, latched level {:?}",
+        "\nend of day: {} events dropped from the queue, latched level {}",
         machine.dropped_events(),
         machine.latched()
     );
@@ -212,10 +223,10 @@ impl<const N: usize> Refresh for WindowDetector<N> {
 
 fn describe(kind: EventKind) -> String {
     match kind {
-        EventKind::Raised(l) => format!("level raised to {l:?}"),
-        EventKind::Lowered { from, to } => format!("level lowered from {from:?} to {to:?}"),
-        EventKind::FaultSet(f) => format!("FAULT {f:?}"),
-        EventKind::FaultCleared(f) => format!("fault {f:?} cleared"),
+        EventKind::Raised(l) => format!("level raised to {l}"),
+        EventKind::Lowered { from, to } => format!("level lowered from {from} to {to}"),
+        EventKind::FaultSet(f) => format!("FAULT: {f}"),
+        EventKind::FaultCleared(f) => format!("fault cleared: {f}"),
         EventKind::Acknowledged => "acknowledged by the operator".to_string(),
     }
 }

@@ -74,7 +74,7 @@ pub fn silence_probability<F: Real>(
 ///
 /// ```
 /// use countward::gap::silence_threshold_s;
-/// // One event a minute, α = 1e-6: 828.9306 s (reference/methods §6.1, exponential law).
+/// // One event a minute, α = 1e-6: 828.9306 s (exponential law; computed).
 /// let t = silence_threshold_s(1.0_f64 / 60.0, 1e-6, 1).unwrap();
 /// assert!((t - 828.9306).abs() < 1e-3);
 /// // Waiting for the 3rd event: λt* = 19.129168 (gamma quantile, same source).

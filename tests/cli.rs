@@ -25,7 +25,7 @@ fn json_number(text: &str, key: &str) -> Option<f64> {
 
 #[test]
 fn tail_json() {
-    // P(N >= 5 | 1) = 0.0036598468273437123 (mpmath; methods §12 row 1).
+    // P(N >= 5 | 1) = 0.0036598468273437123 (computed: mpmath at 40 digits).
     let (code, out, _) = run(&["tail", "--mean", "1", "--at-least", "5", "--json"]);
     assert_eq!(code, 0);
     assert!(
@@ -55,13 +55,13 @@ fn tail_json() {
     }
     let (code, out, _) = run(&["tail", "--mean", "1000", "--at-most", "10", "--json"]);
     assert_eq!(code, 0);
-    // ln P(N <= 10 | 1000) = -946.0168196296328 (mpmath; methods §12 row 17).
+    // ln P(N <= 10 | 1000) = -946.0168196296328 (computed: mpmath at 40 digits).
     assert!((json_number(&out, "ln_p").unwrap() + 946.0168196296328).abs() < 1e-9);
 }
 
 #[test]
 fn threshold_json_all_tiers() {
-    // μ = 10, α = 1e-6 → 29 (methods §1.4).
+    // μ = 10, α = 1e-6 → 29 (computed: mpmath).
     for math in ["f64", "f32", "fixed"] {
         let (code, out, _) = run(&[
             "threshold",
@@ -104,7 +104,7 @@ fn threshold_json_all_tiers() {
 
 #[test]
 fn limits_and_silence_json() {
-    // 10 counts, 95% two-sided: [4.795389, 18.39036] (Garwood; methods §2.2).
+    // 10 counts, 95% two-sided: [4.795389, 18.39036] (Garwood; computed: mpmath).
     let (code, out, _) = run(&["limits", "--counts", "10", "--level", "0.95", "--json"]);
     assert_eq!(code, 0);
     assert!((json_number(&out, "lower").unwrap() - 4.795389).abs() < 1e-6);
@@ -122,7 +122,7 @@ fn limits_and_silence_json() {
     assert_eq!(code, 0);
     assert_eq!(json_number(&out, "lower"), Some(0.0));
     assert!((json_number(&out, "upper").unwrap() - 2.995732273553991).abs() < 1e-12);
-    // λ t* = 19.129168 for the 3rd event at α = 1e-6 (methods §6.1).
+    // λ t* = 19.129168 for the 3rd event at α = 1e-6 (computed: mpmath).
     let (code, out, _) = run(&[
         "silence",
         "--rate-cps",

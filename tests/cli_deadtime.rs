@@ -1,7 +1,7 @@
 //! End-to-end checks of `countward deadtime …`: the exact interface of the
 //! issue, the JSON shapes, the CSV handling (every bad row reported with its
 //! line number, exit status 2), and the SVG plot. Expected numbers are the
-//! published values used in `tests/deadtime.rs` (reference notes §7).
+//! values checked in `tests/deadtime.rs` (computed from the published formulas named there).
 
 use serde_json::Value;
 use std::process::Command;
@@ -35,7 +35,7 @@ fn temp(name: &str, text: &str) -> String {
 
 #[test]
 fn correct_json_shape_and_values() {
-    // Reference notes §7.2 (Knoll 2010 formulas, mpmath Lambert W): τ = 100 µs, m = 3000 cps.
+    // (computed; Knoll 2010 formulas, mpmath Lambert W): τ = 100 µs, m = 3000 cps.
     let v = json(&[
         "deadtime",
         "correct",
@@ -76,7 +76,7 @@ fn correct_json_shape_and_values() {
         "--json",
     ]);
     assert_eq!(v["saturated"], Value::Bool(true));
-    // Hybrid (Lee & Gardner; reference notes §7.2): n = 1000 gives m = 907.591364 for τ_p = 20 µs, τ_n = 80 µs.
+    // Hybrid (Lee & Gardner 2000 model; computed): n = 1000 gives m = 907.591364 for τ_p = 20 µs, τ_n = 80 µs.
     let v = json(&[
         "deadtime",
         "correct",
@@ -111,7 +111,7 @@ fn correct_json_shape_and_values() {
 
 #[test]
 fn two_source_json() {
-    // Reference notes §7.3: τ = 200 µs from model-generated rates.
+    // Computed: τ = 200 µs from model-generated rates.
     let v = json(&[
         "deadtime",
         "two-source",

@@ -15,7 +15,7 @@ const TAU: f64 = 100e-6;
 
 #[test]
 fn inverse_matches_the_published_table() {
-    // Reference notes §7.2 (COMP with mpmath lambertw; formulas of Knoll 2010 ch. 4), τ = 100 µs:
+    // (computed with mpmath's lambertw; formulas of Knoll 2010 ch. 4), τ = 100 µs:
     // m, non-paralyzable n, paralyzable n on W₀, on W₋₁.
     let rows = [
         (1000.0, 1111.111, 1118.3256, 35771.52),
@@ -35,7 +35,7 @@ fn inverse_matches_the_published_table() {
         );
         assert!((c.true_cps_high.unwrap() - n_wm1).abs() < 1e-2, "{m}");
     }
-    // Maximum measured rate 1/(eτ) = 3678.7944 s^-1 at n = 1/τ (reference notes §12 row 76).
+    // Maximum measured rate 1/(eτ) = 3678.7944 s^-1 at n = 1/τ (computed).
     let (n, m) = p.peak().unwrap();
     assert!((n - 10_000.0).abs() < 1e-9 && (m - 3678.7944).abs() < 1e-4);
     // Near the maximum the correction is ill-conditioned: flagged.
@@ -49,7 +49,7 @@ fn inverse_matches_the_published_table() {
 
 #[test]
 fn hybrid_matches_the_reference_values() {
-    // Reference notes §7.2 (COMP; Lee & Gardner 2000 model): τ_p = 20 µs, τ_n = 80 µs.
+    // Computed (Lee & Gardner 2000 model): τ_p = 20 µs, τ_n = 80 µs.
     let h = DeadTime::hybrid(TAU, 0.2).unwrap();
     let m1 = h.measured_cps(1000.0).unwrap();
     let m2 = h.measured_cps(10_000.0).unwrap();
@@ -69,7 +69,7 @@ fn hybrid_matches_the_reference_values() {
 
 #[test]
 fn two_source_matches_the_worked_values() {
-    // Reference notes §7.3 (COMP; Knoll 2010 formula on model-generated data):
+    // Computed (Knoll 2010 formula on model-generated data):
     // τ = 100 µs, n_b = 1, n1 = 200, n2 = 300 s^-1: exact 1.000e-4 s, the
     // approximations 1.078e-4 and 1.055e-4.
     let np = DeadTime::non_paralyzable(TAU).unwrap();
@@ -280,7 +280,7 @@ fn interval_method_recovers_tau() {
 
 #[test]
 fn corrected_rate_uncertainty_matches_simulation() {
-    // Reference notes §7.1 (Müller 1973 variances; COMP simulation): the
+    // (computed: Müller 1973 variances, checked by simulation): the
     // counting part of the stated uncertainty is the spread seen in runs.
     let seed = common::seed(0x5eed_0304);
     let mut rng = common::rng(seed);

@@ -30,7 +30,7 @@ fn brook_evans_reference_reproduces_the_published_arl() {
         (l[0] - 5.49).abs() < 0.005 && (l[3] - 3.33).abs() < 0.005,
         "{l:?}"
     );
-    // Reference notes §4.2 design table (COMP, Brook & Evans 1972): k = 6, h = 8.
+    // A design computed with the Brook & Evans (1972) chain: k = 6, h = 8.
     assert!((common::brook_evans_arl(4.0, 1, 6, 8)[0] - 1736.05).abs() < 0.01);
     assert!((common::brook_evans_arl(8.0, 1, 6, 8)[0] - 4.576).abs() < 0.001);
     // Lattice 1/2: k = 1.5, h = 5 for means 1 and 2: 273.65 / 9.438, FIR 6.217.
@@ -92,7 +92,7 @@ fn decreasing_cusum_signals_a_dying_detector() {
 
 #[test]
 fn sprt_matches_wald_and_the_published_simulation() {
-    // Reference notes §4.1 (Wald 1945/1947; COMP): λ0 = 1, λ1 = 2 s^-1,
+    // (computed from Wald 1945/1947): λ0 = 1, λ1 = 2 s^-1,
     // α = β = 0.05: boundaries ±ln 19. Published Monte Carlo (20,000 runs,
     // continuous time): P(decide H1 | H0) = 0.039, E0[T] = 8.82 s.
     // Here: 10 ms ticks (means 0.01 and 0.02 per tick).
@@ -158,7 +158,7 @@ fn sprt_truncation_has_a_deadline() {
 
 #[test]
 fn silence_budgets_match_the_reference_values() {
-    // Reference notes §6.2 (COMP, Lomax predictive with a0 = b0 = 0):
+    // Computed (Lomax predictive with a0 = b0 = 0):
     // k = 10 in T = 600 s: 597.157 s at α = 1e-3, 1788.643 s at 1e-6;
     // k = 3 in T = 180 s, α = 1e-3: 1620.0 s. Millisecond ticks.
     let ms = |alpha: f64, k: u16, t_s: u32| {
@@ -173,7 +173,7 @@ fn silence_budgets_match_the_reference_values() {
 #[test]
 fn silence_budget_holds_its_false_silence_probability_whatever_the_rate() {
     // The pivot: P(next gap > c_k T_k) = (1 + c_k)^-k = α for every λ.
-    // Reference notes §6.2 (COMP, 400,000 gaps, k = 10, α = 0.01): 0.00997 for
+    // Computed (400,000 gaps, k = 10, α = 0.01): 0.00997 for
     // this rule, 0.0224 for the plug-in rule −ln α T/k.
     let seed = common::seed(0x5eed_0103);
     let mut rng = common::rng(seed);
@@ -213,7 +213,7 @@ fn silence_budget_holds_its_false_silence_probability_whatever_the_rate() {
 
 #[test]
 fn saturation_level_is_the_paralyzable_maximum() {
-    // Reference notes §7.2 (COMP; Knoll 2010 model m = n e^{−nτ}): the
+    // Computed (Knoll 2010 model m = n e^{−nτ}): the
     // maximum measured rate for τ = 100 µs is 1/(eτ) = 3678.7944 s^-1.
     let g = SaturationGuard::for_dead_time(1e-4_f64, 1.0, 1.0).unwrap();
     assert_eq!(g.enter_counts(), 3679);

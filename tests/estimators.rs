@@ -98,7 +98,7 @@ fn smoothed_rate_spread_matches_the_ratemeter_formulas() {
     let tau = r.time_constant_ticks::<f64>();
     let analog = 1.0 / (2.0 * 100.0 * tau).sqrt();
     assert!((reading.relative_uncertainty().unwrap() / analog - 1.0).abs() < 1e-4);
-    // Reference notes §8.2 (COMP, first-order filter variance): the ratemeter
+    // Computed (first-order filter variance): the ratemeter
     // of n = 100 cps and RC = 1 s reads with 7.071% relative SD (PUB: Schiff
     // & Evans 1936, equivalent interval 2RC).
     assert!((1.0 / (2.0_f64 * 100.0 * 1.0).sqrt() - 0.070711).abs() < 1e-6);
@@ -185,7 +185,7 @@ fn adaptive_rate_is_smooth_at_background_and_follows_a_step() {
 
 #[test]
 fn time_to_count_is_unbiased_with_the_documented_spread_and_coverage() {
-    // Reference notes §8.4 (COMP, inverse-gamma moments): N = 100 gaps give a
+    // Computed (inverse-gamma moments): N = 100 gaps give a
     // relative SD of 1/sqrt(98) = 0.10102; N = 10 give 0.35355.
     let mut t = TimeToCount::<101>::new();
     for i in 0..101 {
@@ -245,7 +245,7 @@ fn time_to_count_is_unbiased_with_the_documented_spread_and_coverage() {
 
 #[test]
 fn garwood_interval_of_a_window_reading() {
-    // Reference notes §12 row 40 (Garwood, COMP; a public calculator states
+    // (computed: Garwood limits; a public calculator states
     // "approximately 4.80 to 18.39"): 10 counts, 95% two-sided.
     let mut w = BinWindow::<5>::new();
     for t in 0..5 {

@@ -1,7 +1,7 @@
 //! Checks against published values and values computed outside this project.
-//! Each value names its source; "methods §N" is `shared/reference/methods.md`
-//! of the planning notes, whose [COMP] values were computed with mpmath at
-//! 30–50 digits from the named published formula.
+//! Each value names its source: a published table or worked example, or
+//! "computed" for a value computed with mpmath at 30–50 digits from the
+//! named published formula (not a published number).
 
 // Reference values are kept with every digit their source gives.
 #![allow(clippy::excessive_precision, clippy::approx_constant)]
@@ -16,7 +16,7 @@ fn rel(a: f64, b: f64) -> f64 {
     ((a - b) / b).abs()
 }
 
-/// P(N ≥ n): methods §12 rows 1–12 (mpmath gammainc and 40-digit series agree).
+/// P(N ≥ n): (computed; mpmath gammainc and 40-digit series agree).
 #[test]
 fn upper_tails_f64() {
     let cases: &[(u32, f64, f64)] = &[
@@ -43,7 +43,7 @@ fn upper_tails_f64() {
     assert!(rel(at_least(1e6_f64, 1001000).unwrap().p, 0.158776219138) < 1e-11);
 }
 
-/// ln P tails: methods §12 rows 13–19 (mpmath series).
+/// ln P tails: (computed; mpmath series).
 #[test]
 fn log_tails_f64() {
     assert!((at_least(10.0_f64, 100).unwrap().ln_p + 143.37672310061887).abs() < 1e-10);
@@ -56,13 +56,13 @@ fn log_tails_f64() {
 }
 
 /// Q(1e6 + 1, 1e6) = 0.500265961486284: pytensor issue #2291 quotes SciPy's
-/// 0.5002659615 as correct; mpmath value from methods §12 row 20.
+/// 0.5002659615 as correct; the value itself computed with mpmath.
 #[test]
 fn gamma_q_large_shape() {
     assert!(rel(gamma_q(1e6 + 1.0, 1e6).unwrap(), 0.500265961486284) < 1e-12);
 }
 
-/// Alarm thresholds n*: methods §1.4 table (40-digit series, quadrature check
+/// Alarm thresholds n*: computed table (40-digit series, quadrature check
 /// at 1e7), with the table's smaller margin (relative distance of α from the
 /// tail at n* or n* - 1): f32 may be off by one where it is below 1e-3.
 #[test]
@@ -119,7 +119,7 @@ fn alarm_thresholds_f64() {
 }
 
 /// Exact critical count with a well-known background: μ_B = 10, α = 0.05 →
-/// alarm if N > 15, achieved 0.0487 (methods §12 row 51, Poisson).
+/// alarm if N > 15, achieved 0.0487 (Poisson; computed).
 #[test]
 fn critical_count_background_ten() {
     let t = alarm_threshold(10.0_f64, 0.05).unwrap();
@@ -127,7 +127,7 @@ fn critical_count_background_ten() {
     assert!((t.tail.p - 0.0487).abs() < 1e-4);
 }
 
-/// Garwood limits: methods §2.2 (mpmath root finding; epitools quotes 2.996 and 3.689).
+/// Garwood limits: (computed; mpmath root finding; epitools quotes 2.996 and 3.689).
 #[test]
 fn garwood_limits() {
     let up: &[(u32, f64, f64)] = &[
@@ -166,7 +166,7 @@ fn garwood_limits() {
     assert!(rel(exact_limits(0, 0.95_f64).unwrap().upper, 3.688879454113936) < 1e-14);
 }
 
-/// Silence thresholds: methods §6.1 (exponential and gamma quantiles, mpmath).
+/// Silence thresholds: (computed; exponential and gamma quantiles, mpmath).
 #[test]
 fn silence_thresholds() {
     let lam = 1.0_f64 / 60.0;
@@ -196,7 +196,7 @@ fn silence_thresholds() {
 }
 
 /// Lambert W: W₀(1) = Ω and W(-1/e) = -1 (Corless et al. 1996, DLMF 4.13);
-/// the rest mpmath at 30 digits (methods §7.4).
+/// the rest mpmath at 30 digits (computed: mpmath).
 #[test]
 fn lambert_w_values() {
     assert!(rel(lambert_w0(1.0_f64).unwrap(), 0.5671432904097838729999687) < 4e-16);
@@ -224,7 +224,7 @@ fn lambert_w_values() {
     for &(x, want) in wm1 {
         assert!(rel(lambert_wm1(x).unwrap(), want) < 1e-15, "W-1({x})");
     }
-    // Near the branch point (mpmath, methods §7.4): the derivative is unbounded,
+    // Near the branch point (mpmath, computed): the derivative is unbounded,
     // so the tolerance is the input's rounding effect √(2eδ).
     assert!(rel(lambert_w0(-0.3678794_f64).unwrap(), -0.999526966607568) < 1e-9);
     assert!(rel(lambert_wm1(-0.3678794_f64).unwrap(), -1.00047318261322) < 1e-9);

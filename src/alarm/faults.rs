@@ -29,6 +29,19 @@ impl Fault {
     }
 }
 
+/// The fault as a person reads it: `low counts`, `saturated`, `silent`,
+/// `external fault`.
+impl core::fmt::Display for Fault {
+    fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+        f.write_str(match self {
+            Fault::LowCounts => "low counts",
+            Fault::Saturated => "saturated",
+            Fault::Silent => "silent",
+            Fault::External => "external fault",
+        })
+    }
+}
+
 /// A set of [`Fault`]s.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]

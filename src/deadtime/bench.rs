@@ -53,7 +53,7 @@ fn two_source_exact<F: Real>(m1: F, m2: F, m12: F, mb: F) -> Option<F> {
 ///
 /// ```
 /// use countward::deadtime::two_source;
-/// // Reference notes §7.3 (COMP, data generated with the model, τ = 200 µs):
+/// // Computed (data generated with the model, τ = 200 µs):
 /// let r = two_source(1431.1206_f64, 1876.9519, 2501.2494, 4.995005, None).unwrap();
 /// assert!((r.dead_time_s - 2.000e-4).abs() < 1e-7);
 /// assert!((r.simple_s - 1.50e-4).abs() < 5e-7); // 25% low at these losses

@@ -17,6 +17,17 @@ pub enum ModelKind {
     Hybrid,
 }
 
+/// The model as a person reads it: `non-paralyzable`, `paralyzable`, `hybrid`.
+impl core::fmt::Display for ModelKind {
+    fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+        f.write_str(match self {
+            ModelKind::NonParalyzable => "non-paralyzable",
+            ModelKind::Paralyzable => "paralyzable",
+            ModelKind::Hybrid => "hybrid",
+        })
+    }
+}
+
 /// Relative-uncertainty gain from which a corrected reading is flagged
 /// [`Correction::saturated`]: where the correction multiplies the relative
 /// uncertainty of the measured rate by 10 or more (for a paralyzable
@@ -28,7 +39,7 @@ pub const SATURATION_GAIN: f64 = 10.0;
 ///
 /// ```
 /// use countward::deadtime::DeadTime;
-/// // Reference notes §7.2 (Knoll 2010 formulas; mpmath Lambert W): τ = 100 µs, m = 3000 cps.
+/// // (computed; Knoll 2010 formulas; mpmath Lambert W): τ = 100 µs, m = 3000 cps.
 /// let np = DeadTime::non_paralyzable(100e-6_f64).unwrap();
 /// assert!((np.correct(3000.0).unwrap().true_cps - 4285.714).abs() < 1e-3);
 /// let p = DeadTime::paralyzable(100e-6_f64).unwrap();

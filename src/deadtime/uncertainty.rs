@@ -28,14 +28,14 @@ impl<F: Real> DeadTime<F> {
     /// * counting: the recorded counts `M = m t` are sub-Poisson behind a
     ///   dead time; `Var(M) ≈ m t (1 − mτ)²` non-paralyzable and
     ///   `m t (1 − 2nτ e^{−nτ})` paralyzable (Müller 1973; checked by
-    ///   simulation in the reference notes §7.1), `m t` (Poisson, an upper
+    ///   simulation in `tests/deadtime.rs`), `m t` (Poisson, an upper
     ///   bound) for the hybrid; then `σ_n = gain · (n/m) · σ_m`. For the
     ///   non-paralyzable model this gives `σ_n/n = 1/√M`.
     /// * dead time: `σ_n = |∂n/∂τ| σ_τ` with `∂n/∂τ = −(∂ ln m/∂τ)/(∂ ln m/∂n)`.
     ///
     /// ```
     /// use countward::deadtime::DeadTime;
-    /// // Non-paralyzable: relative SD of the corrected rate is 1/√M (reference notes §7.1).
+    /// // Non-paralyzable: relative SD of the corrected rate is 1/√M (computed).
     /// let np = DeadTime::non_paralyzable(100e-6_f64).unwrap();
     /// let c = np.correct_with_uncertainty(3000.0, 10.0, 0.0).unwrap();
     /// assert!((c.from_counts_cps / c.true_cps - 1.0 / 30_000f64.sqrt()).abs() < 1e-12);

@@ -16,6 +16,17 @@ pub enum Level {
     Alarm,
 }
 
+/// The level as a person reads it: `normal`, `warning`, `alarm`.
+impl core::fmt::Display for Level {
+    fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+        f.write_str(match self {
+            Level::Normal => "normal",
+            Level::Warning => "warning",
+            Level::Alarm => "alarm",
+        })
+    }
+}
+
 /// The classification of one window count against [`LevelThresholds`].
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]

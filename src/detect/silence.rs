@@ -31,7 +31,7 @@ pub const MAX_DELAY_TICKS: u32 = i32::MAX as u32;
 /// use countward::detect::SilencePlan;
 /// let plan = SilencePlan::<32>::new(1e-3_f64, 3, 3_600).unwrap();
 /// // 10 gaps summing to 600 s: budget 600 (1000^(1/10) − 1) = 597.157 s
-/// // (the predictive threshold of the reference notes, §6.2).
+/// // (the Lomax predictive threshold with a0 = b0 = 0; computed).
 /// assert_eq!(plan.budget_ticks(600, 10), 597);
 /// ```
 #[derive(Debug, Clone, PartialEq, Eq)]

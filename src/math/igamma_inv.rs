@@ -161,7 +161,7 @@ fn start<F: Real>(a: F, ln_t: F, upper_side: bool) -> F {
 ///
 /// ```
 /// use countward::math::gamma_p_inv;
-/// // 0.5·χ²₀.₀₂₅(20) = 4.795389 (Garwood lower 95% limit for 10 counts; reference/methods §2.2, mpmath).
+/// // 0.5·χ²₀.₀₂₅(20) = 4.795389 (Garwood lower 95% limit for 10 counts; computed: mpmath).
 /// let x = gamma_p_inv(10.0_f64, 0.025).unwrap();
 /// assert!((x - 4.795389).abs() < 1e-6);
 /// ```

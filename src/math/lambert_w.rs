@@ -138,7 +138,7 @@ pub fn lambert_w0<F: Real>(x: F) -> Result<F, Error> {
 ///
 /// ```
 /// use countward::math::lambert_wm1;
-/// // W₋₁(-0.1) = -3.5771520639572972 (mpmath; reference/methods §7.4).
+/// // W₋₁(-0.1) = -3.5771520639572972 (computed: mpmath at 40 digits).
 /// let w = lambert_wm1(-0.1_f64).unwrap();
 /// assert!((w + 3.5771520639572972).abs() < 1e-14);
 /// ```

@@ -27,7 +27,7 @@ pub struct MeanLimits<F> {
 ///
 /// ```
 /// use countward::poisson::exact_limits;
-/// // 10 counts, 95%: [4.795389, 18.39036] (Garwood; reference/methods §2.2, mpmath).
+/// // 10 counts, 95%: [4.795389, 18.39036] (Garwood; computed: mpmath).
 /// let l = exact_limits(10, 0.95_f64).unwrap();
 /// assert!((l.lower - 4.795389).abs() < 1e-6 && (l.upper - 18.39036).abs() < 1e-5);
 /// ```

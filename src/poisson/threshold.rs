@@ -81,7 +81,7 @@ fn guess<F: Real>(mean: F, alpha: F, ln_alpha: F, upper: bool) -> (u32, u32) {
 ///
 /// ```
 /// use countward::poisson::alarm_threshold;
-/// // μ = 10, α = 1e-6 → 29 (mpmath; reference/methods §1.4).
+/// // μ = 10, α = 1e-6 → 29 (computed: mpmath at 40 digits).
 /// let t = alarm_threshold(10.0_f64, 1e-6).unwrap();
 /// assert_eq!(t.counts, 29);
 /// assert!(t.tail.p <= 1e-6);
