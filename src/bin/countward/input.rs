@@ -155,17 +155,34 @@ pub fn read_each(
     path: &str,
     required: &[&str],
     optional: &[&str],
-    mut each: impl FnMut(u64, &[Option<f64>]) -> Result<(), String>,
+    each: impl FnMut(u64, &[Option<f64>]) -> Result<(), String>,
 ) -> Result<(), String> {
     let file = File::open(path).map_err(|e| format!("error: {flag} {path}: {e}"))?;
+    read_each_from(
+        flag,
+        path,
+        BufReader::with_capacity(1 << 16, file),
+        required,
+        optional,
+        each,
+    )
+}
+
+/// As [`read_each`], from any reader (`path` names it in messages); the
+/// fuzz target `csv_reader` drives this directly.
+pub fn read_each_from(
+    flag: &str,
+    path: &str,
+    source: impl Read,
+    required: &[&str],
+    optional: &[&str],
+    mut each: impl FnMut(u64, &[Option<f64>]) -> Result<(), String>,
+) -> Result<(), String> {
     let mut reader = csv::ReaderBuilder::new()
         .has_headers(false)
         .flexible(true)
         .trim(csv::Trim::All)
-        .from_reader(BlankLinesAsComments::new(BufReader::with_capacity(
-            1 << 16,
-            file,
-        )));
+        .from_reader(BlankLinesAsComments::new(source));
     // The header: the first record that is not a blank or comment line.
     let mut header = csv::ByteRecord::new();
     loop {
