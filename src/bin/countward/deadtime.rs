@@ -475,7 +475,19 @@ fn decay(a: DecayArgs) -> Result<(String, Value), Failure> {
     let mut fits: Vec<DecayFit<f64>> = Vec::new();
     let mut failures = Vec::new();
     for (k, f) in &kinds {
-        match deadtime::fit_decay(&points, half, *k, *f) {
+        let spin = input::spinner(
+            &format!(
+                "fitting the {} model to {} points",
+                model_name(*k),
+                points.len()
+            ),
+            points.len(),
+        );
+        let result = deadtime::fit_decay(&points, half, *k, *f);
+        if let Some(s) = spin {
+            s.finish_and_clear();
+        }
+        match result {
             Ok(fit) => fits.push(fit),
             Err(e @ (Error::OutOfRange(Param::Seconds) | Error::NotFinite(Param::Seconds))) => {
                 return Err(lib_in(e, &[(Param::Seconds, "--half-life-s", half)]));
@@ -636,7 +648,12 @@ fn intervals(a: IntervalsArgs) -> Result<(String, Value), Failure> {
         Ok(())
     })
     .map_err(Failure)?;
-    let fit = deadtime::fit_intervals(&stamps).map_err(|e| match e {
+    let spin = input::spinner("fitting the interval distribution", stamps.len());
+    let fit = deadtime::fit_intervals(&stamps);
+    if let Some(s) = spin {
+        s.finish_and_clear();
+    }
+    let fit = fit.map_err(|e| match e {
         Error::NotDetermined(countward::Param::Data) => Failure(format!(
             "error: --input {}: too few time stamps to determine the dead time (need at least 21)",
             a.input

@@ -158,14 +158,43 @@ pub fn read_each(
     each: impl FnMut(u64, &[Option<f64>]) -> Result<(), String>,
 ) -> Result<(), String> {
     let file = File::open(path).map_err(|e| format!("error: {flag} {path}: {e}"))?;
-    read_each_from(
-        flag,
-        path,
-        BufReader::with_capacity(1 << 16, file),
-        required,
-        optional,
-        each,
-    )
+    let size = file.metadata().map_or(0, |m| m.len());
+    // A progress bar on stderr for inputs that take more than a moment
+    // (indicatif draws nothing when stderr is not a terminal).
+    let bar = (size > PROGRESS_FROM_BYTES).then(|| {
+        let bar = indicatif::ProgressBar::new(size);
+        bar.set_style(
+            indicatif::ProgressStyle::with_template(
+                "reading {msg} {bar:30} {bytes}/{total_bytes} ({eta} left)",
+            )
+            .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+        );
+        bar.set_message(path.to_string());
+        bar
+    });
+    let source = BufReader::with_capacity(1 << 16, file);
+    let result = match &bar {
+        Some(bar) => read_each_from(flag, path, bar.wrap_read(source), required, optional, each),
+        None => read_each_from(flag, path, source, required, optional, each),
+    };
+    if let Some(bar) = bar {
+        bar.finish_and_clear();
+    }
+    result
+}
+
+/// Inputs above this size (about a second's reading) show a progress bar.
+const PROGRESS_FROM_BYTES: u64 = 16 << 20;
+
+/// A spinner on stderr for a long computation (hidden when stderr is not a
+/// terminal); `None` for small inputs.
+pub fn spinner(message: &str, input_points: usize) -> Option<indicatif::ProgressBar> {
+    (input_points > 200_000).then(|| {
+        let s = indicatif::ProgressBar::new_spinner();
+        s.set_message(message.to_string());
+        s.enable_steady_tick(std::time::Duration::from_millis(200));
+        s
+    })
 }
 
 /// As [`read_each`], from any reader (`path` names it in messages); the
