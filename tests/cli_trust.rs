@@ -49,7 +49,7 @@ fn negative_numbers_reach_validation_and_are_refused_by_flag() {
         "--model",
         "non-paralyzable",
     ]);
-    assert!(e.contains("--dead-time-s -0.0001"), "{e}");
+    assert!(e.contains("--dead-time-s -1e-4"), "{e}"); // as typed
 }
 
 #[test]

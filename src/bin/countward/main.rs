@@ -138,8 +138,24 @@ struct SilenceArgs {
 /// A one-line failure: exit status 2.
 struct Failure(String);
 
+/// A refused value, shown as the user typed it (from the command line) where
+/// the flag was given there, else as the tool read it.
 fn bad(flag: &str, value: impl std::fmt::Display, why: &str) -> Failure {
-    Failure(format!("error: {flag} {value}: {why}"))
+    let shown = typed(flag).unwrap_or_else(|| value.to_string());
+    Failure(format!("error: {flag} {shown}: {why}"))
+}
+
+/// The text given for `flag` on the command line (`--flag V` or `--flag=V`).
+fn typed(flag: &str) -> Option<String> {
+    let args: Vec<String> = std::env::args().collect();
+    let prefix = format!("{flag}=");
+    args.iter().enumerate().find_map(|(i, a)| {
+        if a == flag {
+            args.get(i + 1).cloned()
+        } else {
+            a.strip_prefix(&prefix).map(str::to_string)
+        }
+    })
 }
 
 /// Validates a number given on the command line, naming the flag.
