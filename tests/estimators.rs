@@ -98,10 +98,19 @@ fn smoothed_rate_spread_matches_the_ratemeter_formulas() {
     let tau = r.time_constant_ticks::<f64>();
     let analog = 1.0 / (2.0 * 100.0 * tau).sqrt();
     assert!((reading.relative_uncertainty().unwrap() / analog - 1.0).abs() < 1e-4);
-    // Computed (first-order filter variance): the ratemeter
-    // of n = 100 cps and RC = 1 s reads with 7.071% relative SD (PUB: Schiff
-    // & Evans 1936, equivalent interval 2RC).
-    assert!((1.0 / (2.0_f64 * 100.0 * 1.0).sqrt() - 0.070711).abs() < 1e-6);
+    // Schiff & Evans (1936), equivalent counting interval 2RC: a ratemeter
+    // at n = 100 cps with RC = 1 s reads with 1/√(2nRC) = 7.071 % relative
+    // SD. The digital one with a time constant of 1024 ticks of 1/1024 s:
+    // √(a/((2 − a)μ)) with a = 2^-10, μ = 100/1024 per tick = 7.073 %.
+    let mut rc = SmoothedRate::settled_at(10, (100u64 << 32) / 1024).unwrap();
+    rc.update(0);
+    let rel = rc
+        .reading(1.0_f64 / 1024.0)
+        .unwrap()
+        .unwrap()
+        .relative_uncertainty()
+        .unwrap();
+    assert!((rel / 0.070711 - 1.0).abs() < 1e-3, "{rel}");
 
     // Monte Carlo: the empirical spread of the integer EWMA at steady state
     // matches sqrt(a/((2-a) mu)).
@@ -313,10 +322,30 @@ proptest! {
             let _ = fleet.event(c as usize % 6, Ticks(now));
             let _ = fleet.next_silent(Ticks(now));
         }
-        let _ = w.reading(tick_s);
-        let _ = s.reading(tick_s);
-        let _ = a.reading(tick_s);
-        let _ = t.reading(tick_s);
-        let _ = t.interval_cps(tick_s, 0.9);
+        // Every reading that comes back is a number with a sane uncertainty;
+        // ticks outside 1 ns..1e9 s are refused, never turned into ∞ or 0.
+        let valid_tick = (1e-9..=1e9).contains(&tick_s);
+        for r in [w.reading(tick_s), s.reading(tick_s), a.reading(tick_s), t.reading(tick_s)] {
+            match r {
+                Ok(Some(r)) => {
+                    prop_assert!(valid_tick);
+                    prop_assert!(r.rate_cps.is_finite() && r.rate_cps >= 0.0, "{:?}", r);
+                    prop_assert!(r.std_uncertainty_cps.is_finite() && r.std_uncertainty_cps >= 0.0, "{:?}", r);
+                    prop_assert!(r.seconds.is_finite() && r.seconds > 0.0, "{:?}", r);
+                }
+                Ok(None) => prop_assert!(valid_tick),
+                Err(e) => prop_assert!(!valid_tick, "{:?}", e),
+            }
+        }
+        if let Ok(Some((lo, hi))) = t.interval_cps(tick_s, 0.9) {
+            prop_assert!(lo.is_finite() && hi.is_finite() && lo <= hi && lo >= 0.0);
+        }
+        // The window holds what it was given, and the learned background
+        // never sits below its floor.
+        // (An error only where the learned mean per window leaves the plannable range.)
+        match d.background_per_window() {
+            Ok(b) => prop_assert!(b >= FixedMean::from_counts(8).unwrap()),
+            Err(e) => prop_assert_eq!(e, countward::Error::OutOfRange(countward::Param::Mean)),
+        }
     }
 }

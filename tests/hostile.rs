@@ -21,24 +21,8 @@ use countward::rate::{BinWindow, SmoothedRate, TimeToCount};
 use countward::{Real, Ticks};
 use proptest::prelude::*;
 
-/// Any f64, weighted toward the values that break numerics.
-fn hostile() -> impl Strategy<Value = f64> {
-    prop_oneof![
-        2 => proptest::num::f64::ANY,
-        1 => Just(f64::NAN),
-        1 => Just(f64::INFINITY),
-        1 => Just(f64::NEG_INFINITY),
-        1 => Just(0.0),
-        1 => Just(f64::MIN_POSITIVE),
-        1 => Just(f64::MAX),
-        1 => Just(5e-324),
-        1 => 1e-320f64..1e-300,
-        1 => 1e300f64..1e308,
-        3 => (-20.0f64..20.0).prop_map(|e| 10f64.powf(e)),
-        2 => 0.0f64..1.0,
-        1 => (1.0f64 - 1e-15)..1.0,
-    ]
-}
+mod common;
+use common::hostile_f64 as hostile;
 
 fn hostile_u32() -> impl Strategy<Value = u32> {
     prop_oneof![

@@ -125,3 +125,69 @@ pub fn recorded_count(
 ) -> u64 {
     recorded_events(rng, rate_cps, tau_s, duration_s, paralyzable).len() as u64
 }
+
+/// Any f64, weighted toward the values that break numerics (NaN, ±∞, 0,
+/// subnormals, the extremes) and toward the ranges where the code does its
+/// work, so that most cases reach the branches under test.
+pub fn hostile_f64() -> impl proptest::strategy::Strategy<Value = f64> {
+    use proptest::prelude::*;
+    prop_oneof![
+        2 => proptest::num::f64::ANY,
+        1 => Just(f64::NAN),
+        1 => Just(f64::INFINITY),
+        1 => Just(f64::NEG_INFINITY),
+        1 => Just(0.0),
+        1 => Just(f64::MIN_POSITIVE),
+        1 => Just(f64::MAX),
+        1 => Just(5e-324),
+        1 => 1e-320f64..1e-300,
+        1 => 1e300f64..1e308,
+        3 => (-20.0f64..20.0).prop_map(|e| 10f64.powf(e)),
+        2 => 0.0f64..1.0,
+        1 => (1.0f64 - 1e-15)..1.0,
+    ]
+}
+
+/// Wald's SPRT on an integer lattice, as an absorbing Markov chain: from a
+/// log-likelihood ratio of 0, each tick adds `counts · per_count − per_tick`
+/// with counts ~ Poisson(`mean`) (statrs pmf); the test stops at `≥ upper`
+/// or `≤ lower`. Returns (P(stop at the upper boundary), E[ticks per test]),
+/// solved by Gauss–Seidel sweeps to convergence. An independent f64
+/// reference for the SPRT's operating characteristic (Wald's formulas ignore
+/// the overshoot; this does not).
+pub fn sprt_chain(mean: f64, per_count: i64, per_tick: i64, upper: i64, lower: i64) -> (f64, f64) {
+    use statrs::distribution::{Discrete, DiscreteCDF, Poisson};
+    let poisson = Poisson::new(mean).unwrap();
+    // Counts that matter: up to the first that always reaches the upper boundary.
+    let max_counts = ((upper - lower + per_tick) / per_count + 1) as u64;
+    let pmf: Vec<f64> = (0..=max_counts).map(|c| poisson.pmf(c)).collect();
+    let beyond = poisson.sf(max_counts); // P(counts > max_counts): always upper
+    let states = (upper - lower - 1) as usize; // lower + 1 ..= upper − 1
+    let mut p_up = vec![0.0f64; states];
+    let mut t = vec![0.0f64; states];
+    for _ in 0..200_000 {
+        let mut change = 0.0f64;
+        for i in 0..states {
+            let s = lower + 1 + i as i64;
+            let (mut pu, mut tt) = (beyond, 1.0);
+            for (c, &w) in pmf.iter().enumerate() {
+                let next = s + c as i64 * per_count - per_tick;
+                if next >= upper {
+                    pu += w;
+                } else if next > lower {
+                    let j = (next - lower - 1) as usize;
+                    pu += w * p_up[j];
+                    tt += w * t[j];
+                }
+            }
+            change = change.max((pu - p_up[i]).abs()).max((tt - t[i]).abs() / tt);
+            p_up[i] = pu;
+            t[i] = tt;
+        }
+        if change < 1e-13 {
+            break;
+        }
+    }
+    let start = (-lower - 1) as usize; // the state s = 0
+    (p_up[start], t[start])
+}
