@@ -46,6 +46,10 @@ proptest! {
     ) {
         let config = AlarmConfig::new(persist.0, persist.1, persist.2, persist.3).unwrap();
         let mut m = AlarmMachine::<4>::new(config);
+        // A twin with room for every event, fed the same inputs and drained
+        // only at the end: the reference sequence of events.
+        let mut twin = AlarmMachine::<2048>::new(config);
+        let mut seen = Vec::new(); // events the small machine delivered, in order
         let mut t = 0u32;
         let mut max_since_ack = Level::Normal;
         let mut faults_since_ack = Faults::NONE;
@@ -65,6 +69,7 @@ proptest! {
                         f = f.with(x, faults & (1 << i) != 0);
                     }
                     m.update(Ticks(t), c, f);
+                    twin.update(Ticks(t), c, f);
                     t += 1;
                     if m.active() != before_level {
                         generated += 1;
@@ -76,12 +81,14 @@ proptest! {
                 }
                 Op::Poll => {
                     while let Some(e) = m.poll_event() {
+                        seen.push(e);
                         delivered += 1;
                         if e.kind == EventKind::Raised(Level::Alarm) { raised_alarm_delivered += 1; }
                     }
                 }
                 Op::Ack => {
                     m.acknowledge(Ticks(t));
+                    twin.acknowledge(Ticks(t));
                     generated += 1;
                     max_since_ack = m.active();
                     faults_since_ack = m.active_faults();
@@ -98,6 +105,26 @@ proptest! {
             if raised_alarm_delivered < raised_alarm_generated {
                 prop_assert!(m.queued_events() > 0 || m.dropped_events() > 0);
             }
+        }
+        // Identity, not just counts: what the small queue delivered (polled
+        // along the way, then drained) is the twin's full sequence with
+        // exactly `dropped_events()` events missing and nothing reordered or
+        // invented — so a lost alarm cannot hide behind another queued event.
+        while let Some(e) = m.poll_event() {
+            seen.push(e);
+        }
+        let mut reference = Vec::new();
+        while let Some(e) = twin.poll_event() {
+            reference.push(e);
+        }
+        prop_assert_eq!(twin.dropped_events(), 0);
+        prop_assert_eq!(reference.len(), seen.len() + m.dropped_events() as usize);
+        let mut it = reference.iter();
+        for e in &seen {
+            prop_assert!(it.any(|r| r == e), "{:?} delivered out of order or invented", e);
+        }
+        if m.dropped_events() == 0 {
+            prop_assert_eq!(&seen, &reference);
         }
     }
 }
