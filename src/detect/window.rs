@@ -2,7 +2,7 @@
 
 use super::level::{Classification, Level, LevelThresholds, ThresholdPlan};
 use crate::error::{Error, Param};
-use crate::fixed::FixedMean;
+use crate::fixed::{FixedMean, MAX_MEAN_RAW as MAX_MEAN_Q32};
 use crate::rate::{BinWindow, SmoothedRate};
 use crate::ticks::Ticks;
 
@@ -136,12 +136,18 @@ impl<const N: usize> WindowDetector<N> {
     /// must be reported as unable to arm: it never answers "no need" for
     /// thresholds it cannot have).
     pub fn needs_refresh(&self) -> bool {
-        let Ok(now) = self.background_per_window() else {
+        let Some(_) = self.thresholds else {
             return true;
         };
-        match self.thresholds {
-            None => true,
-            Some(_) => now.raw().abs_diff(self.basis_q32) > self.basis_q32 / 16 + (1u64 << 31),
+        // Background per window in UQ32.32, by a 64-bit multiply where it
+        // fits (always, for plannable means); beyond that it cannot be
+        // planned, and `refresh` will say so.
+        let per_tick = self.background.mean_per_tick_q32().max(self.floor_q32);
+        match per_tick.checked_mul(N as u64) {
+            Some(now) if now <= MAX_MEAN_Q32 => {
+                now.abs_diff(self.basis_q32) > self.basis_q32 / 16 + (1u64 << 31)
+            }
+            _ => true,
         }
     }
 

@@ -36,7 +36,7 @@ use crate::error::{Error, Param};
 use crate::search::first_accepted;
 
 /// Largest mean accepted: [`crate::poisson::MAX_MEAN`] (2e9) in UQ32.32.
-const MAX_MEAN_RAW: u64 = 2_000_000_000u64 << 32;
+pub(crate) const MAX_MEAN_RAW: u64 = 2_000_000_000u64 << 32;
 /// Smallest ln α accepted: -1e5 (far below any practical false-alarm probability).
 const MIN_LN_ALPHA_RAW: i64 = -100_000i64 << 32;
 

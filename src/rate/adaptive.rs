@@ -2,9 +2,14 @@
 
 use super::{BinWindow, RateReading, check_tick_s};
 use crate::error::{Error, Param};
-use crate::fixed::{FixedAlpha, FixedMean, alarm_threshold, fault_threshold};
+use crate::fixed::{
+    FixedAlpha, FixedMean, MAX_MEAN_RAW as MAX_MEAN_Q32, alarm_threshold, fault_threshold,
+};
 use crate::math::Real;
 use crate::ticks::Ticks;
+
+/// Most bins `trim` drops in one call (bounds the work of a tick).
+const MAX_TRIM_PER_TICK: u32 = 4;
 
 /// Settings of an [`AdaptiveRate`].
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -172,9 +177,16 @@ impl<const N: usize> AdaptiveRate<N> {
         self.trim();
     }
 
+    /// Drops the oldest bins while the rest still hold the target count; at
+    /// most [`MAX_TRIM_PER_TICK`] bins per call, so a tick's work is bounded
+    /// (after a burst the average stays longer than needed for a few ticks:
+    /// more counts, never fewer, behind the reading).
     fn trim(&mut self) {
         let floor = self.config.min_ticks;
-        while self.len > floor {
+        for _ in 0..MAX_TRIM_PER_TICK {
+            if self.len <= floor {
+                break;
+            }
             let oldest = u64::from(self.window.bin_ago(self.len as usize - 1));
             if self.segment_sum - oldest < u64::from(self.config.target_counts) {
                 break;
@@ -219,15 +231,38 @@ impl<const N: usize> AdaptiveRate<N> {
     /// Whether the step limits should be recomputed (cold path): there are
     /// none yet and the average now has a basis, or the prediction has moved
     /// by more than an eighth (plus half a count) since they were computed.
+    ///
+    /// Cost: compares by cross-multiplication (no division: a 128-bit
+    /// division is a bit-by-bit software loop of ~3000 instructions on a
+    /// Cortex-M0, and this runs every tick).
     pub fn needs_refresh(&self) -> bool {
-        let Some(Ok(now)) = self.predicted_probe_q32() else {
+        let probe = self.config.probe_ticks;
+        if self.len <= probe {
             return false;
-        };
+        }
+        // The prediction is basis/den counts; in UQ32.32: basis·2^32/den.
+        let basis = (self.segment_sum - self.probe_sum).saturating_mul(u64::from(probe));
+        let den = u64::from(self.len - probe);
+        // Usually everything fits 64 bits (one 64-bit multiply per product
+        // on the M0); the 128-bit form is the fallback for huge counts.
+        if let Some(l) = self.limits
+            && basis < 1 << 32
+            && let (Some(then), Some(tol)) = (
+                l.basis_q32.checked_mul(den),
+                (l.basis_q32 / 8 + (1u64 << 31)).checked_mul(den),
+            )
+        {
+            return (basis << 32).abs_diff(then) > tol;
+        }
+        let (basis, den) = (u128::from(basis), u128::from(den));
+        let scaled = basis << 32; // prediction · den, UQ32.32
         match self.limits {
-            None => true,
+            // Plannable (as `refresh` will find): at most the largest mean.
+            None => scaled <= u128::from(MAX_MEAN_Q32) * den,
             Some(l) => {
-                let tolerance = l.basis_q32 / 8 + (1u64 << 31);
-                now.raw().abs_diff(l.basis_q32) > tolerance
+                let tolerance = u128::from(l.basis_q32 / 8 + (1u64 << 31));
+                let then = u128::from(l.basis_q32) * den;
+                scaled.abs_diff(then) > tolerance * den
             }
         }
     }

@@ -99,7 +99,13 @@ impl SmoothedRate {
     /// Feeds the counts of one tick.
     pub fn update(&mut self, counts: u32) {
         self.ticks_seen = self.ticks_seen.saturating_add(1);
-        let s = self.effective_shift();
+        // Settled (the usual case): the full shift, without the logarithm of
+        // the tick count (a software count-leading-zeros on a Cortex-M0).
+        let s = if self.ticks_seen >= 1u32 << self.shift {
+            self.shift
+        } else {
+            self.effective_shift()
+        };
         let x = u64::from(counts) << 32;
         // The step is at most the distance, so neither update can overflow,
         // whatever the state (a settled mean may be any u64).
