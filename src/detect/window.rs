@@ -32,7 +32,7 @@ use crate::ticks::Ticks;
 ///
 /// Memory: `4 N + 88` bytes on 32-bit targets. Per tick on a Cortex-M0, the
 /// whole firmware chain (this detector, the alarm machine, a saturation guard,
-/// a CUSUM and an adaptive rate) takes about 840 instructions on average
+/// a CUSUM and an adaptive rate) takes about 850 instructions on average
 /// (`tests/firmware`, measured under QEMU).
 ///
 /// ```
