@@ -4,18 +4,10 @@
 //! values checked in `tests/deadtime.rs` (computed from the published formulas named there).
 
 use serde_json::Value;
-use std::process::Command;
+mod common;
 
 fn run(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_countward"))
-        .args(args)
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8(out.stdout).unwrap(),
-        String::from_utf8(out.stderr).unwrap(),
-    )
+    common::run_exe(env!("CARGO_BIN_EXE_countward"), args)
 }
 
 fn json(args: &[&str]) -> Value {
@@ -26,11 +18,7 @@ fn json(args: &[&str]) -> Value {
 }
 
 fn temp(name: &str, text: &str) -> String {
-    let dir = std::env::temp_dir().join(format!("countward-cli-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let p = dir.join(name);
-    std::fs::write(&p, text).unwrap();
-    p.to_string_lossy().into_owned()
+    common::temp_file("cli", name, text.as_bytes())
 }
 
 #[test]

@@ -191,3 +191,24 @@ pub fn sprt_chain(mean: f64, per_count: i64, per_tick: i64, upper: i64, lower: i
     let start = (-lower - 1) as usize; // the state s = 0
     (p_up[start], t[start])
 }
+
+/// Writes `bytes` to a file `name` in a folder of this test process
+/// (`countward-<tag>-<pid>` in the system's temporary folder) and returns its path.
+pub fn temp_file(tag: &str, name: &str, bytes: &[u8]) -> String {
+    let dir = std::env::temp_dir().join(format!("countward-{tag}-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let p = dir.join(name);
+    std::fs::write(&p, bytes).unwrap();
+    p.to_string_lossy().into_owned()
+}
+
+/// Runs the binary at `exe` (pass `env!("CARGO_BIN_EXE_countward")`) with
+/// `args`: (exit status, stdout, stderr), output read as lossy UTF-8.
+pub fn run_exe(exe: &str, args: &[&str]) -> (i32, String, String) {
+    let out = std::process::Command::new(exe).args(args).output().unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
