@@ -66,6 +66,21 @@ impl<const N: usize> BinWindow<N> {
     /// Adds `counts` to the bin of tick `now`, first moving the window on to
     /// `now` if it is later than the newest tick.
     pub fn add(&mut self, now: Ticks, counts: u32) {
+        // The common case: exactly one tick after the newest. One bin leaves,
+        // one enters (the new bin starts empty, so all of `counts` lands).
+        if self.filled != 0 && now.0 == self.newest.0.wrapping_add(1) {
+            let head = if self.head + 1 >= N { 0 } else { self.head + 1 };
+            if let Some(bin) = self.bins.get_mut(head) {
+                self.sum = self.sum - u64::from(*bin) + u64::from(counts);
+                *bin = counts;
+                self.head = head;
+                self.newest = now;
+                if (self.filled as usize) < N {
+                    self.filled += 1;
+                }
+                return;
+            }
+        }
         self.advance_to(now);
         let bin = &mut self.bins[self.head];
         let added = counts.min(u32::MAX - *bin);
