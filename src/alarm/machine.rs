@@ -116,6 +116,19 @@ impl<const Q: usize> AlarmMachine<Q> {
     /// merged with the classification's).
     pub fn update(&mut self, now: Ticks, c: Classification, faults: Faults) {
         self.last = now;
+        // The quiet tick at rest (the usual case): nothing active, no run of
+        // ticks under way, and nothing in this tick's input. The full update
+        // would only count clearing runs, which matter only while a level is
+        // active (a raise resets them), so it changes nothing observable.
+        if self.active == Level::Normal
+            && self.faults_active.is_empty()
+            && faults.is_empty()
+            && c == Classification::QUIET
+            && self.up_runs == [0; 2]
+            && self.fault_runs == [0; 4]
+        {
+            return;
+        }
         self.update_level(now, c);
         for f in Fault::ALL {
             let (set, hold) = match f {
