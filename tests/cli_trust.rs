@@ -113,6 +113,24 @@ fn errors_name_the_flag_and_the_value_typed() {
 }
 
 #[test]
+fn the_fixed_tier_refuses_a_mean_it_cannot_represent() {
+    // 1e-13 counts rounds to 0 in UQ32.32: it was answered "p = 0".
+    let e = refused(&[
+        "tail",
+        "--mean",
+        "1e-13",
+        "--at-least",
+        "1",
+        "--math",
+        "fixed",
+    ]);
+    assert!(
+        e.contains("--mean 1e-13") && e.contains("fixed tier"),
+        "{e}"
+    );
+}
+
+#[test]
 fn a_flag_that_needs_another_is_an_error() {
     let e = refused(&[CORRECT_100_CPS_100_US, &["--dead-time-sd-s", "1e-6"]].concat());
     assert!(e.contains("--seconds"), "{e}");

@@ -261,7 +261,17 @@ fn num(v: f64) -> String {
 }
 
 fn fixed_mean(mean: f64) -> Result<FixedMean, Failure> {
-    FixedMean::from_raw((mean * 4_294_967_296.0).round() as u64).map_err(lib)
+    let raw = (mean * 4_294_967_296.0).round();
+    // A positive mean that rounds to 0 in UQ32.32 would be answered as a
+    // mean of 0 (p = 0): refused instead.
+    if mean > 0.0 && raw < 1.0 {
+        return Err(bad(
+            "--mean",
+            num(mean),
+            "is too small for the fixed tier (its resolution is 2^-32 = 2.3e-10 counts); use --math f64",
+        ));
+    }
+    FixedMean::from_raw(raw as u64).map_err(|e| lib_in(e, &[(Param::Mean, "--mean", mean)]))
 }
 
 fn fixed_alpha(alpha: f64) -> Result<FixedAlpha, Failure> {
