@@ -246,3 +246,62 @@ fn two_source_uncertainty_is_the_delta_method_value() {
         "stated {stated:e}, delta method {sd:e}"
     );
 }
+
+// ---- Lucas's CUSUM design: every branch against values computed here.
+
+#[test]
+fn cusum_design_from_means() {
+    // k = (μ1 − μ0)/ln(μ1/μ0) (Lucas 1985), on a lattice of 1/scale.
+    let lattice =
+        |m0: f64, m1: f64, scale: f64| ((m1 - m0) / (m1 / m0).ln() * scale).round() as u32;
+    // Far apart (relative step above 1): 4 → 8, k = 4/ln 2 = 5.770780.
+    let c = CusumConfig::for_means(4.0_f64, 8.0, 8.0, 1000, false).unwrap();
+    assert_eq!(c.reference(), lattice(4.0, 8.0, 1000.0));
+    assert_eq!(c.reference(), 5771);
+    assert_eq!((c.scale(), c.decision(), c.head_start()), (1000, 8000, 0));
+    assert_eq!(c.direction(), CusumDirection::Increase);
+    // The decrease design uses the same k.
+    let d = CusumConfig::for_means(8.0_f64, 4.0, 8.0, 1000, true).unwrap();
+    assert_eq!((d.reference(), d.head_start()), (5771, 4000));
+    assert_eq!(d.direction(), CusumDirection::Decrease);
+    // Close (relative step 1/2): 1 → 1.5, k = 0.5/ln 1.5 = 1.2331517.
+    let e = CusumConfig::for_means(1.0_f64, 1.5, 5.0, 1000, false).unwrap();
+    assert_eq!(e.reference(), lattice(1.0, 1.5, 1000.0));
+    assert_eq!(e.reference(), 1233);
+    // 2 → 6 on quarter counts: k = 4/ln 3 = 3.641 → 15, h = 4 → 16, fast start 8.
+    let f = CusumConfig::for_means(2.0_f64, 6.0, 4.0, 4, true).unwrap();
+    assert_eq!((f.reference(), f.decision(), f.head_start()), (15, 16, 8));
+    // Limits of the lattice.
+    assert_eq!(
+        CusumConfig::for_means(2.0_f64, 6.0, 4.0, 0, false),
+        Err(countward::Error::OutOfRange(countward::Param::Scale))
+    );
+    assert!(CusumConfig::for_means(2.0_f64, 6.0, 4.0, 1 << 16, false).is_ok());
+    assert_eq!(
+        CusumConfig::for_means(2.0_f64, 6.0, 4.0, (1 << 16) + 1, false),
+        Err(countward::Error::OutOfRange(countward::Param::Scale))
+    );
+    // h·scale must fit below u32::MAX: 65 536 × 65 536 = 2^32 does not.
+    assert_eq!(
+        CusumConfig::for_means(2.0_f64, 6.0, 65_536.0, 1 << 16, false),
+        Err(countward::Error::OutOfRange(countward::Param::Threshold))
+    );
+    // k·scale·4 must fit too: k ≈ 1e6 − ½ at scale 2^16 gives 2.6e11.
+    assert_eq!(
+        CusumConfig::for_means(999_999.0_f64, 1e6, 4.0, 1 << 16, false),
+        Err(countward::Error::OutOfRange(countward::Param::Threshold))
+    );
+    // ... and so must it where only the 4k guard trips: k = 30 497.9 at
+    // scale 2^16 is 2.0e9 (fits), 4k = 8.0e9 (does not).
+    assert_eq!(
+        CusumConfig::for_means(30_000.0_f64, 31_000.0, 1.0, 1 << 16, false),
+        Err(countward::Error::OutOfRange(countward::Param::Threshold))
+    );
+    // A reference of exactly one lattice unit is a design; below it is not.
+    assert_eq!(
+        CusumConfig::for_means(0.9_f64, 1.1, 4.0, 1, false)
+            .unwrap()
+            .reference(),
+        1
+    );
+}
