@@ -305,3 +305,30 @@ fn cusum_design_from_means() {
         1
     );
 }
+
+// ---- Names as a person reads them (the demo and the tool print these).
+
+#[test]
+fn names_print_as_words() {
+    use countward::alarm::Fault;
+    use countward::deadtime::ModelKind;
+    let levels: Vec<String> = [Level::Normal, Level::Warning, Level::Alarm]
+        .iter()
+        .map(|l| l.to_string())
+        .collect();
+    assert_eq!(levels, ["normal", "warning", "alarm"]);
+    let faults: Vec<String> = Fault::ALL.iter().map(|f| f.to_string()).collect();
+    assert_eq!(
+        faults,
+        ["low counts", "saturated", "silent", "external fault"]
+    );
+    let models: Vec<String> = [
+        ModelKind::NonParalyzable,
+        ModelKind::Paralyzable,
+        ModelKind::Hybrid,
+    ]
+    .iter()
+    .map(|m| m.to_string())
+    .collect();
+    assert_eq!(models, ["non-paralyzable", "paralyzable", "hybrid"]);
+}
