@@ -332,3 +332,140 @@ fn names_print_as_words() {
     .collect();
     assert_eq!(models, ["non-paralyzable", "paralyzable", "hybrid"]);
 }
+
+// ---- Smaller promises the mutation run found unpinned.
+
+#[test]
+fn cusum_reset_returns_to_the_head_start() {
+    let mut c = PoissonCusum::new(CusumConfig::new(1, 2, 10, 4, CusumDirection::Increase).unwrap());
+    c.update(7); // 4 + 7 − 2 = 9
+    assert_eq!(c.statistic(), 9);
+    c.reset();
+    assert_eq!(c.statistic(), 4);
+}
+
+#[test]
+fn quiet_means_nothing_held_and_no_low_count_held() {
+    use countward::detect::Classification;
+    assert!(Classification::QUIET.is_quiet());
+    let held = Classification {
+        hold: Level::Warning,
+        ..Classification::QUIET
+    };
+    assert!(!held.is_quiet());
+    let low = Classification {
+        low_hold: true,
+        ..Classification::QUIET
+    };
+    assert!(!low.is_quiet());
+}
+
+#[test]
+fn low_count_clearing_stays_below_the_warning_clear() {
+    // With a clearing probability above 1/2 the fault-clear count would reach
+    // past the warning-clear count; the plan caps it at warning clear − 1.
+    let plan = ThresholdPlan::new(
+        FixedAlpha::one_in(100_000).unwrap(),
+        FixedAlpha::one_in(10_000_000).unwrap(),
+        FixedAlpha::from_ratio(3, 4).unwrap(),
+        FixedAlpha::one_in(100_000).unwrap(),
+    )
+    .unwrap();
+    let t = plan
+        .thresholds(FixedMean::from_counts(100).unwrap())
+        .unwrap();
+    let warn_clear = alarm_threshold(100.0_f64, 0.75).unwrap().counts;
+    let fault_clear = fault_threshold(100.0_f64, 0.75).unwrap().unwrap().counts;
+    assert!(fault_clear >= warn_clear, "the cap must bind in this case");
+    assert_eq!(t.warn_clear(), warn_clear);
+    let low_set = fault_threshold(100.0_f64, 1e-5).unwrap().unwrap().counts;
+    assert_eq!(t.low(), Some((low_set, warn_clear - 1)));
+}
+
+fn detector_at_two_per_tick() -> WindowDetector<10> {
+    WindowDetector::<10>::new(
+        FixedMean::from_counts(2).unwrap(),
+        FixedMean::from_ratio(1, 2).unwrap(),
+        4,
+    )
+    .unwrap()
+}
+
+#[test]
+fn window_detector_is_quiet_until_its_window_is_full() {
+    let mut d = detector_at_two_per_tick();
+    d.set_thresholds(
+        LevelThresholds::new(30, 25, 40, 30, Some((2, 5))).unwrap(),
+        FixedMean::from_counts(20).unwrap(),
+    );
+    // 9 ticks of 50 counts: the count is far above every threshold, but the
+    // window is not full, so nothing is classified.
+    for t in 0..9 {
+        assert_eq!(
+            d.tick(Ticks(t), 50),
+            countward::detect::Classification::QUIET,
+            "tick {t}"
+        );
+        assert!(!d.is_armed());
+    }
+    assert_eq!(d.tick(Ticks(9), 50).raise, Level::Alarm);
+    assert!(d.is_armed());
+}
+
+#[test]
+fn window_detector_learning_can_be_paused() {
+    let mut d = detector_at_two_per_tick();
+    let before = d.background().mean_per_tick_q32();
+    d.set_learning(false);
+    for t in 0..50 {
+        d.tick(Ticks(t), 9);
+    }
+    assert_eq!(d.background().mean_per_tick_q32(), before);
+    d.set_learning(true);
+    d.tick(Ticks(50), 9);
+    assert!(d.background().mean_per_tick_q32() > before);
+}
+
+#[test]
+fn window_detector_asks_for_a_refresh_exactly_when_documented() {
+    // "none yet, or the background per window moved by more than 1/16 plus
+    // half a count since they were planned".
+    let plan = ThresholdPlan::new(
+        FixedAlpha::one_in(100_000).unwrap(),
+        FixedAlpha::one_in(10_000_000).unwrap(),
+        FixedAlpha::one_in(100).unwrap(),
+        FixedAlpha::one_in(100_000).unwrap(),
+    )
+    .unwrap();
+    let mut d = detector_at_two_per_tick();
+    assert!(d.needs_refresh());
+    d.refresh(&plan).unwrap();
+    assert!(!d.needs_refresh());
+    // The background is 20 per window; planned for a basis b, the band is
+    // b/16 + 1/2 counts around b.
+    let thresholds = d.thresholds().unwrap();
+    let with_basis = |d: &mut WindowDetector<10>, b: FixedMean| {
+        d.set_thresholds(thresholds, b);
+        d.needs_refresh()
+    };
+    assert!(!with_basis(
+        &mut d,
+        FixedMean::from_ratio(2175, 100).unwrap()
+    )); // 1.75 < 1.859
+    assert!(with_basis(&mut d, FixedMean::from_counts(22).unwrap())); // 2 > 1.875
+    assert!(with_basis(&mut d, FixedMean::from_counts(18).unwrap())); // 2 > 1.625
+    assert!(!with_basis(
+        &mut d,
+        FixedMean::from_ratio(1840, 100).unwrap()
+    )); // 1.6 < 1.65
+    // Exactly on the edge in UQ32.32 (b = 16q + 13 with 15q + 13 = 20·2^32 + 2^31):
+    // |b − now| equals b/16 + 2^31 to the last bit, which is not "more than".
+    assert!(!with_basis(
+        &mut d,
+        FixedMean::from_raw(16 * 5_869_788_637 + 13).unwrap()
+    ));
+    assert!(with_basis(
+        &mut d,
+        FixedMean::from_raw(16 * 5_869_788_637 + 14).unwrap()
+    ));
+}
