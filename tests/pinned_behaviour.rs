@@ -271,6 +271,12 @@ fn cusum_design_from_means() {
     // 2 → 6 on quarter counts: k = 4/ln 3 = 3.641 → 15, h = 4 → 16, fast start 8.
     let f = CusumConfig::for_means(2.0_f64, 6.0, 4.0, 4, true).unwrap();
     assert_eq!((f.reference(), f.decision(), f.head_start()), (15, 16, 8));
+    // Means 0.1 count apart near 1e6: k = m0 + Δ/2 − Δ²/(12 m0) + … =
+    // 999 999.95 (series of the logarithmic mean), 999 999 950 on a 1/1000
+    // lattice. The difference of logarithms gives 999 999 953 here; the
+    // ln_1p form is exact to the unit.
+    let g = CusumConfig::for_means(999_999.9_f64, 1e6, 8.0, 1000, false).unwrap();
+    assert_eq!(g.reference(), 999_999_950);
     // Limits of the lattice.
     assert_eq!(
         CusumConfig::for_means(2.0_f64, 6.0, 4.0, 0, false),
