@@ -10,9 +10,9 @@ use countward::Ticks;
 use countward::alarm::{AlarmConfig, AlarmMachine, EventKind, Faults, Level};
 use countward::detect::{
     CusumConfig, LevelThresholds, PoissonCusum, SilenceFleet, SilencePlan, Sprt, SprtConfig,
-    SprtDecision, ThresholdPlan, WindowDetector,
+    SprtDecision, WindowDetector,
 };
-use countward::fixed::{FixedAlpha, FixedMean};
+use countward::fixed::FixedMean;
 use countward::plan::{sliding_threshold, sliding_upcrossings_per_tick};
 use countward::poisson::at_least;
 
@@ -77,13 +77,7 @@ fn sliding_window_alarm_starts_match_the_exact_upcrossing_plan() {
 fn the_learning_chain_keeps_its_false_alarm_plan_and_detects_a_source() {
     let seed = common::seed(0x5eed_0202);
     let mut rng = common::rng(seed);
-    let plan = ThresholdPlan::new(
-        FixedAlpha::one_in(2_000).unwrap(),
-        FixedAlpha::one_in(1_000_000).unwrap(),
-        FixedAlpha::one_in(20).unwrap(),
-        FixedAlpha::one_in(1_000_000).unwrap(),
-    )
-    .unwrap();
+    let plan = common::plan_one_in(2_000, 1_000_000, 20, 1_000_000);
     // Calibration says 1.8 cps; the true background is 2 cps: the chain learns it.
     let start = FixedMean::from_ratio(18, 10).unwrap();
     let mut d =

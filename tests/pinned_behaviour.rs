@@ -17,6 +17,8 @@ use countward::plan::sliding_upcrossings_per_tick;
 use countward::poisson::{alarm_threshold, fault_threshold};
 use statrs::distribution::{Discrete, DiscreteCDF, Poisson};
 
+mod common;
+
 // ---- Level thresholds: every comparison at its boundary.
 
 #[test]
@@ -46,13 +48,7 @@ fn classification_boundaries_are_inclusive_as_documented() {
 fn the_plan_has_the_documented_hysteresis() {
     // Each threshold from the f64 tier at the documented α (an independent
     // tier: the plan itself uses the integer one).
-    let plan = ThresholdPlan::new(
-        FixedAlpha::one_in(100_000).unwrap(),
-        FixedAlpha::one_in(10_000_000).unwrap(),
-        FixedAlpha::one_in(100).unwrap(),
-        FixedAlpha::one_in(100_000).unwrap(),
-    )
-    .unwrap();
+    let plan = common::plan_one_in(100_000, 10_000_000, 100, 100_000);
     for mean in [5u32, 20, 100, 1000] {
         let t = plan
             .thresholds(FixedMean::from_counts(mean).unwrap())
@@ -436,13 +432,7 @@ fn window_detector_learning_can_be_paused() {
 fn window_detector_asks_for_a_refresh_exactly_when_documented() {
     // "none yet, or the background per window moved by more than 1/16 plus
     // half a count since they were planned".
-    let plan = ThresholdPlan::new(
-        FixedAlpha::one_in(100_000).unwrap(),
-        FixedAlpha::one_in(10_000_000).unwrap(),
-        FixedAlpha::one_in(100).unwrap(),
-        FixedAlpha::one_in(100_000).unwrap(),
-    )
-    .unwrap();
+    let plan = common::plan_one_in(100_000, 10_000_000, 100, 100_000);
     let mut d = detector_at_two_per_tick();
     assert!(d.needs_refresh());
     d.refresh(&plan).unwrap();

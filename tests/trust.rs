@@ -11,14 +11,16 @@
 //! quoted beside them); none is a published value.
 
 use countward::deadtime::{CorrectionTable, DeadTime, two_source};
-use countward::detect::{CusumConfig, CusumDirection, SprtConfig, ThresholdPlan, WindowDetector};
-use countward::fixed::{FixedAlpha, FixedMean};
+use countward::detect::{CusumConfig, CusumDirection, SprtConfig, WindowDetector};
+use countward::fixed::FixedMean;
 use countward::math::{gamma_p, gamma_p_inv, gamma_q, gamma_q_inv};
 use countward::plan::{sliding_threshold, sliding_upcrossings_per_tick};
 use countward::poisson::{at_most, exact_upper_limit, fault_threshold, pmf};
 use countward::rate::SmoothedRate;
 use countward::{Error, Param, Ticks};
 use proptest::prelude::*;
+
+mod common;
 
 // ---- 1. Sliding-window thresholds lie above the mean and meet their target.
 
@@ -232,13 +234,7 @@ fn sprt_refuses_designs_that_cannot_decide() {
 
 #[test]
 fn window_detector_that_cannot_arm_says_so() {
-    let plan = ThresholdPlan::new(
-        FixedAlpha::one_in(10_000).unwrap(),
-        FixedAlpha::one_in(1_000_000).unwrap(),
-        FixedAlpha::one_in(100).unwrap(),
-        FixedAlpha::one_in(1_000_000).unwrap(),
-    )
-    .unwrap();
+    let plan = common::plan_one_in(10_000, 1_000_000, 100, 1_000_000);
     let mut d = WindowDetector::<60>::new(
         FixedMean::from_counts(2).unwrap(),
         FixedMean::from_counts(1).unwrap(),

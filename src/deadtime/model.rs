@@ -1,7 +1,7 @@
 //! Dead-time models: forward (true → measured) and inverse (measured → true).
 
 use crate::error::{Error, Param, check_range};
-use crate::math::{Real, lambert_w0, lambert_wm1};
+use crate::math::{Real, bracket_split, lambert_w0, lambert_wm1};
 
 /// Which dead-time behaviour a counter has.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -299,14 +299,7 @@ impl<F: Real> DeadTime<F> {
     fn solve_branch(&self, m: F, mut lo: F, mut hi: F, rising: bool) -> Result<F, Error> {
         let target = m.ln();
         let g = |n: F| -> F { self.forward(n).ln() - target };
-        let mid = |lo: F, hi: F| -> F {
-            if lo > F::ZERO && hi > F::of(4.0) * lo {
-                lo.sqrt() * hi.sqrt()
-            } else {
-                lo + (hi - lo) * F::HALF // (lo + hi) overflows near MAX
-            }
-        };
-        let mut n = mid(lo, hi);
+        let mut n = bracket_split(lo, hi);
         for _ in 0..400 {
             let v = g(n);
             if v == F::ZERO {
@@ -322,7 +315,7 @@ impl<F: Real> DeadTime<F> {
             let next = if d != F::ZERO && newton > lo && newton < hi {
                 newton
             } else {
-                mid(lo, hi)
+                bracket_split(lo, hi)
             };
             if (next - n).abs() <= F::EPSILON * F::of(4.0) * n
                 || hi - lo <= F::EPSILON * F::of(4.0) * hi

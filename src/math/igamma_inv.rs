@@ -7,6 +7,7 @@
 //! logarithm of the *smaller* tail (so the equation stays well conditioned
 //! down to 1e-300 and below), safeguarded by a bracket and bisection.
 
+use super::bracket_split;
 use super::igamma::{check_shape_arg, tails};
 use super::loader::ln_prefactor;
 use crate::Real;
@@ -114,12 +115,8 @@ fn invert<F: Real>(a: F, p: F, lower: bool) -> Result<F, Error> {
                 x + x + F::ONE
             }
         } else {
-            let floor = if lo > tiny { lo } else { tiny };
-            if hi > F::of(4.0) * floor {
-                (F::HALF * (floor.ln() + hi.ln())).exp()
-            } else {
-                lo + F::HALF * (hi - lo) // no overflow near MAX
-            }
+            // From the smallest positive float up while nothing below is known.
+            bracket_split(if lo > tiny { lo } else { tiny }, hi)
         };
         if hi.is_finite() && hi - lo <= F::of(4.0) * F::EPSILON * hi {
             return Ok(x);

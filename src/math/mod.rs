@@ -31,6 +31,18 @@ pub(crate) mod temme_table;
 pub use igamma::{gamma_p, gamma_q, ln_gamma_p, ln_gamma_q};
 pub(crate) use igamma::{pmf_by_product, tails};
 pub(crate) use igamma_inv::normal_upper_quantile_rough_ln;
+
+/// The next trial point of a bisection on `[lo, hi]` (0 ≤ lo < hi finite):
+/// geometric (`√lo·√hi`) while the bracket spans more than a factor 4, so
+/// brackets over hundreds of decades close in tens of steps instead of
+/// hundreds; else the midpoint, written so that it cannot overflow near MAX.
+pub(crate) fn bracket_split<F: Real>(lo: F, hi: F) -> F {
+    if lo > F::ZERO && hi > F::of(4.0) * lo {
+        lo.sqrt() * hi.sqrt()
+    } else {
+        lo + (hi - lo) * F::HALF
+    }
+}
 pub use igamma_inv::{gamma_p_inv, gamma_q_inv};
 pub use lambert_w::{lambert_w0, lambert_wm1};
 pub use real::Real;

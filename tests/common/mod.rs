@@ -212,3 +212,21 @@ pub fn run_exe(exe: &str, args: &[&str]) -> (i32, String, String) {
         String::from_utf8_lossy(&out.stderr).into_owned(),
     )
 }
+
+/// A threshold plan from "one in n" probabilities per check: warning,
+/// alarm, clearing (the hysteresis band) and low counts.
+pub fn plan_one_in(
+    warn: u64,
+    alarm: u64,
+    clear: u64,
+    low: u64,
+) -> countward::detect::ThresholdPlan {
+    use countward::fixed::FixedAlpha;
+    countward::detect::ThresholdPlan::new(
+        FixedAlpha::one_in(warn).unwrap(),
+        FixedAlpha::one_in(alarm).unwrap(),
+        FixedAlpha::one_in(clear).unwrap(),
+        FixedAlpha::one_in(low).unwrap(),
+    )
+    .unwrap()
+}

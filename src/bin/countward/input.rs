@@ -323,18 +323,11 @@ pub fn read_each_from(
     }
 }
 
-/// One line for a CSV error, with its line number where the crate knows it.
+/// One line for a CSV error. (Field counts and UTF-8 are checked record by
+/// record above, with their line numbers: the reader is flexible and reads
+/// bytes, so only I/O and quoting errors come from it.)
 fn describe(e: &csv::Error) -> String {
     match e.kind() {
-        csv::ErrorKind::Utf8 { pos: Some(p), .. } => format!("line {}: not UTF-8 text", p.line()),
-        csv::ErrorKind::UnequalLengths {
-            pos: Some(p),
-            expected_len,
-            len,
-        } => format!(
-            "line {}: {len} fields, the header has {expected_len}",
-            p.line()
-        ),
         csv::ErrorKind::Io(io) => format!("cannot read: {io}"),
         _ => format!("{e}"),
     }
